@@ -1,0 +1,30 @@
+# simplicial-verifier: `make run` for the main job, `make test` for the test suite.
+PYTHON ?= python3
+VENV   := .venv
+BIN    := $(VENV)/bin
+STAMP  := $(VENV)/.installed
+
+.PHONY: install run test test-full bench clean
+
+$(STAMP): pyproject.toml
+	$(PYTHON) -m venv $(VENV)
+	$(BIN)/pip install --quiet --upgrade pip
+	$(BIN)/pip install --quiet -e '.[test]'
+	touch $(STAMP)
+
+install: $(STAMP)
+
+run: $(STAMP)
+	$(BIN)/verifier show torus-7 projective-plane-6 dunce-hat-8 poincare-sphere-16
+
+test: $(STAMP)
+	$(BIN)/python -m pytest -q -n 2 -m "not slow"
+
+test-full: $(STAMP)
+	$(BIN)/python -m pytest -q -n 2
+
+bench: $(STAMP)
+	$(BIN)/python bench/run.py
+
+clean:
+	rm -rf $(VENV) build *.egg-info

@@ -1,0 +1,39 @@
+"""Shared test data: seeded random complexes and the networkx graph atlas."""
+
+from __future__ import annotations
+
+import random
+
+import networkx as nx
+import pytest
+
+from verifier.complex import Complex
+
+
+def random_complex(rng: random.Random, max_vertices: int = 7, max_dim: int = 3,
+                   max_facets: int = 6) -> Complex:
+    """A random complex: a few random vertex sets of size <= max_dim + 1, closed downward."""
+    n = rng.randint(1, max_vertices)
+    facets = [rng.sample(range(n), rng.randint(1, min(n, max_dim + 1)))
+              for _ in range(rng.randint(1, max_facets))]
+    return Complex.from_facets(facets)
+
+
+def random_complexes(count: int, seed: int, **options) -> list[Complex]:
+    rng = random.Random(seed)
+    return [random_complex(rng, **options) for _ in range(count)]
+
+
+@pytest.fixture(scope="session")
+def atlas_graphs() -> list[nx.Graph]:
+    """The 1,253 graphs on 0..7 vertices of the graph atlas that networkx ships
+    (R. C. Read and R. J. Wilson, "An Atlas of Graphs", Oxford, 1998); graphs with no
+    vertex give the empty complex and are skipped."""
+    return [g for g in nx.graph_atlas_g() if g.number_of_nodes() > 0]
+
+
+@pytest.fixture(scope="session")
+def atlas_complexes(atlas_graphs) -> dict[str, list[Complex]]:
+    """Every atlas graph as a 1-dimensional complex and as its flag (clique) complex."""
+    return {"1-dimensional": [Complex.from_graph(g) for g in atlas_graphs],
+            "flag": [Complex.from_graph(g, flag=True) for g in atlas_graphs]}

@@ -1,0 +1,15 @@
+"""simplicial-verifier: exact tests of identities about finite simplicial complexes.
+
+Importing ``verifier`` is light: ``Complex`` is loaded on first use, so that the
+independent re-checking backend can run in a process that never loads python-flint.
+"""
+
+__all__ = ["Complex", "ComplexError", "__version__"]
+__version__ = "0.1.0"
+
+
+def __getattr__(name):
+    if name in ("Complex", "ComplexError"):
+        from . import complex as _complex
+        return getattr(_complex, name)
+    raise AttributeError(f"module 'verifier' has no attribute {name!r}")

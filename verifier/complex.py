@@ -1,0 +1,446 @@
+"""The immutable finite abstract simplicial complex.
+
+A finite abstract simplicial complex K is a finite set of non-empty finite sets
+(simplices) closed under taking non-empty subsets.  Here a ``Complex`` stores
+
+* ``labels``     -- the vertex labels the user gave, in canonical (sorted) order;
+                    vertex ``i`` is ``labels[i]``;
+* ``simplices``  -- every simplex as a sorted tuple of vertex indices, ordered by
+                    (dimension, lexicographic), so every prefix of the list is a
+                    subcomplex and ``simplices[:n0]`` are the vertices;
+* ``index``      -- the position of each simplex in that list.
+
+Every matrix indexed by simplices (connection matrix, Green function, Hodge
+operator, ...) uses this order.  Because faces come before the simplices that
+contain them, the containment matrix is unitriangular in this order, which is
+what makes exact elimination on the connection matrix cheap.
+
+Isomorphism: ``canonical_form()`` is an exact canonical form (equal for two
+complexes iff they are isomorphic) computed by individualisation-refinement for
+complexes on at most ``CANONICAL_MAX_VERTICES`` vertices; ``content_hash`` is the
+SHA-256 of that form.  Beyond that bound ``content_hash`` is the hash of a strong
+isomorphism invariant (colour refinement of the vertex-simplex incidence): equal
+for isomorphic complexes, but two non-isomorphic complexes may in rare cases share
+it.  ``hash_is_canonical`` says which one a complex carries.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+from collections.abc import Hashable, Iterable
+from itertools import combinations
+from pathlib import Path
+
+__all__ = ["Complex", "ComplexError", "CANONICAL_MAX_VERTICES"]
+
+CANONICAL_MAX_VERTICES = 10
+
+
+class ComplexError(ValueError):
+    """A user-supplied description of a complex is not valid (says where and why)."""
+
+
+def _sort_labels(labels: Iterable[Hashable]) -> tuple:
+    labels = set(labels)
+    try:
+        return tuple(sorted(labels))
+    except TypeError:  # mixed label types: order by type name, then by text
+        return tuple(sorted(labels, key=lambda v: (type(v).__name__, repr(v))))
+
+
+class Complex:
+    """An immutable finite abstract simplicial complex.
+
+    Build one with :meth:`from_facets`, :meth:`from_graph` or :meth:`from_file`.
+
+    >>> K = Complex.from_facets([[1, 2, 3], [3, 4]])
+    >>> K.f_vector
+    (4, 4, 1)
+    >>> K.dim
+    2
+    >>> [K.label_of(s) for s in K.facets]
+    [(3, 4), (1, 2, 3)]
+    """
+
+    __slots__ = ("labels", "simplices", "_cache")
+
+    def __init__(self, labels: tuple, simplices: tuple[tuple[int, ...], ...]):
+        """Low-level constructor: ``simplices`` must already be closed, sorted by
+        (dim, lex) and indexed into ``labels``.  Use the ``from_*`` builders."""
+        object.__setattr__(self, "labels", labels)
+        object.__setattr__(self, "simplices", simplices)
+        object.__setattr__(self, "_cache", {})
+
+    def __setattr__(self, name, value):
+        raise AttributeError("Complex is immutable")
+
+    # ------------------------------------------------------------------ builders
+    @classmethod
+    def from_facets(cls, facets: Iterable[Iterable[Hashable]]) -> "Complex":
+        """The smallest complex containing the given sets (its facets need not be maximal).
+
+        Vertex labels may be any hashable values; the empty set is ignored.
+        """
+        raw = []
+        for position, facet in enumerate(facets):
+            if isinstance(facet, (str, bytes)) or not isinstance(facet, Iterable):
+                raise ComplexError(
+                    f"facet {position}: expected a list of vertex labels, got {facet!r}")
+            members = list(facet)
+            if len(set(members)) != len(members):
+                raise ComplexError(f"facet {position}: repeated vertex in {members!r}")
+            if members:
+                raw.append(members)
+        labels = _sort_labels(v for f in raw for v in f)
+        position = {v: i for i, v in enumerate(labels)}
+        return cls._from_index_sets(labels, (tuple(sorted(position[v] for v in f)) for f in raw))
+
+    @classmethod
+    def _from_index_sets(cls, labels: tuple, sets: Iterable[tuple[int, ...]]) -> "Complex":
+        """Close sorted index tuples downward and order the result."""
+        maximal = set(sets)
+        closed: set[tuple[int, ...]] = set()
+        for s in sorted(maximal, key=len, reverse=True):
+            if s in closed:
+                continue
+            for k in range(1, len(s) + 1):
+                closed.update(combinations(s, k))
+        for v in range(len(labels)):
+            closed.add((v,))
+        return cls(labels, tuple(sorted(closed, key=lambda s: (len(s), s))))
+
+    @classmethod
+    def from_simplices(cls, simplices: Iterable[Iterable[Hashable]]) -> "Complex":
+        """Same as :meth:`from_facets`; named for readability when a full list is given."""
+        return cls.from_facets(simplices)
+
+    @classmethod
+    def from_graph(cls, graph, flag: bool = False, max_dim: int | None = None) -> "Complex":
+        """A networkx graph as a complex.
+
+        ``flag=False``: the 1-dimensional complex (vertices and edges).
+        ``flag=True``: the flag (clique) complex, whose simplices are the cliques.
+        Self-loops are rejected; isolated vertices are kept.
+        """
+        if any(u == v for u, v in graph.edges()):
+            raise ComplexError("graph has a self-loop; simplicial complexes have none")
+        if not flag:
+            return cls.from_facets([[v] for v in graph.nodes()] + [list(e) for e in graph.edges()])
+        import networkx as nx
+
+        cliques = []
+        for clique in nx.enumerate_all_cliques(graph):
+            if max_dim is not None and len(clique) > max_dim + 1:
+                break
+            cliques.append(clique)
+        return cls.from_facets(cliques)
+
+    @classmethod
+    def from_file(cls, path: str | Path) -> "Complex":
+        """Read facets from a file.
+
+        ``.json``: a list of facets, or an object with a ``"facets"`` list.
+        Anything else: text, one facet per line, labels separated by spaces or commas;
+        ``#`` starts a comment.  Labels that look like integers become integers.
+        """
+        path = Path(path)
+        try:
+            text = path.read_text(encoding="utf-8")
+        except OSError as error:
+            raise ComplexError(f"{path}: cannot read ({error.strerror})") from None
+        except UnicodeDecodeError:
+            raise ComplexError(f"{path}: not a UTF-8 text file") from None
+        if path.suffix.lower() == ".json":
+            try:
+                data = json.loads(text)
+            except json.JSONDecodeError as error:
+                raise ComplexError(
+                    f"{path}:{error.lineno}:{error.colno}: invalid JSON ({error.msg})") from None
+            facets = data.get("facets") if isinstance(data, dict) else data
+            if not isinstance(facets, list):
+                raise ComplexError(f"{path}: expected a list of facets or {{\"facets\": [...]}}")
+            for i, facet in enumerate(facets):
+                if not isinstance(facet, list) or not all(
+                        isinstance(v, (int, str)) and not isinstance(v, bool) for v in facet):
+                    raise ComplexError(
+                        f"{path}: facet {i} must be a list of integer or string labels, got {facet!r}")
+            try:
+                return cls.from_facets(facets)
+            except ComplexError as error:
+                raise ComplexError(f"{path}: {error}") from None
+        facets = []
+        for lineno, line in enumerate(text.splitlines(), start=1):
+            body = line.split("#", 1)[0].replace(",", " ").strip()
+            if not body:
+                continue
+            labels = [int(t) if t.lstrip("-").isdigit() else t for t in body.split()]
+            if len(set(labels)) != len(labels):
+                raise ComplexError(f"{path}:{lineno}: repeated vertex in {labels!r}")
+            facets.append(labels)
+        return cls.from_facets(facets)
+
+    # ---------------------------------------------------------------- structure
+    def _cached(self, key, compute):
+        cache = self._cache
+        if key not in cache:
+            cache[key] = compute()
+        return cache[key]
+
+    @property
+    def index(self) -> dict[tuple[int, ...], int]:
+        """Position of each simplex (a sorted tuple of vertex indices) in ``simplices``."""
+        return self._cached("index", lambda: {s: i for i, s in enumerate(self.simplices)})
+
+    def __len__(self) -> int:
+        return len(self.simplices)
+
+    def __iter__(self):
+        return iter(self.simplices)
+
+    def __contains__(self, simplex) -> bool:
+        return tuple(simplex) in self.index
+
+    @property
+    def n_vertices(self) -> int:
+        return len(self.labels)
+
+    @property
+    def dim(self) -> int:
+        """Largest dimension of a simplex; -1 for the empty complex."""
+        return len(self.simplices[-1]) - 1 if self.simplices else -1
+
+    @property
+    def f_vector(self) -> tuple[int, ...]:
+        """(f_0, f_1, ..., f_d): the number of simplices of each dimension."""
+        def compute():
+            counts = [0] * (self.dim + 1)
+            for s in self.simplices:
+                counts[len(s) - 1] += 1
+            return tuple(counts)
+        return self._cached("f_vector", compute)
+
+    @property
+    def facets(self) -> tuple[tuple[int, ...], ...]:
+        """The maximal simplices, in simplex order."""
+        def compute():
+            covered = set()
+            for s in self.simplices:
+                if len(s) > 1:
+                    covered.update(combinations(s, len(s) - 1))
+            return tuple(s for s in self.simplices if s not in covered)
+        return self._cached("facets", compute)
+
+    @property
+    def dims(self) -> tuple[int, ...]:
+        """Dimension of each simplex, in simplex order."""
+        return self._cached("dims", lambda: tuple(len(s) - 1 for s in self.simplices))
+
+    def is_pure(self) -> bool:
+        """True when every facet has the complex's dimension."""
+        return all(len(f) == self.dim + 1 for f in self.facets)
+
+    def label_of(self, simplex: tuple[int, ...]) -> tuple:
+        """The user's labels of a simplex given by vertex indices."""
+        return tuple(self.labels[v] for v in simplex)
+
+    def simplex_of(self, labels: Iterable[Hashable]) -> tuple[int, ...]:
+        """The index tuple of a simplex given by the user's labels (KeyError if absent)."""
+        position = self._cached("label_position", lambda: {v: i for i, v in enumerate(self.labels)})
+        simplex = tuple(sorted(position[v] for v in labels))
+        if simplex not in self.index:
+            raise KeyError(f"{tuple(labels)!r} is not a simplex of this complex")
+        return simplex
+
+    def facet_labels(self) -> list[list]:
+        """The facets in the user's labels (for printing and certificates)."""
+        return [list(self.label_of(f)) for f in self.facets]
+
+    def containments(self) -> tuple[list[int], list[int]]:
+        """All pairs (x, z) of simplex positions with x a face of z (x = z included).
+
+        Returned as two parallel lists ``(faces, cofaces)``; there are
+        sum over z of (2^|z| - 1) pairs.  This is the incidence structure of the face
+        poset, from which the connection matrix, its factorisation and the Green
+        function are built.
+        """
+        def compute():
+            index = self.index
+            faces, cofaces = [], []
+            for j, z in enumerate(self.simplices):
+                for k in range(1, len(z) + 1):
+                    for x in combinations(z, k):
+                        faces.append(index[x])
+                        cofaces.append(j)
+            return faces, cofaces
+        return self._cached("containments", compute)
+
+    def vertex_stars(self) -> tuple[tuple[int, ...], ...]:
+        """For each vertex, the positions of the simplices that contain it."""
+        def compute():
+            stars = [[] for _ in self.labels]
+            for j, s in enumerate(self.simplices):
+                for v in s:
+                    stars[v].append(j)
+            return tuple(tuple(s) for s in stars)
+        return self._cached("vertex_stars", compute)
+
+    def graph(self):
+        """The 1-skeleton as a networkx graph on vertex indices 0..n-1."""
+        import networkx as nx
+
+        g = nx.Graph()
+        g.add_nodes_from(range(self.n_vertices))
+        g.add_edges_from(s for s in self.simplices if len(s) == 2)
+        return g
+
+    def relabel(self, mapping) -> "Complex":
+        """The same complex with vertex labels replaced by ``mapping[label]`` (a dict or a function)."""
+        get = mapping.get if isinstance(mapping, dict) else mapping
+        new = [get(v) if not isinstance(mapping, dict) or v in mapping else v for v in self.labels]
+        if len(set(new)) != len(new):
+            raise ComplexError("relabelling must be injective")
+        return Complex.from_facets([[new[v] for v in f] for f in self.facets] +
+                                   [[x] for x in new])
+
+    # -------------------------------------------------------------- comparison
+    def __eq__(self, other) -> bool:
+        return (isinstance(other, Complex) and self.labels == other.labels
+                and self.simplices == other.simplices)
+
+    def __hash__(self) -> int:
+        return hash((self.labels, self.simplices))
+
+    def __repr__(self) -> str:
+        facets = self.facet_labels()
+        shown = facets if len(facets) <= 8 else facets[:8] + ["..."]
+        return f"Complex(f_vector={list(self.f_vector)}, facets={shown})"
+
+    # ------------------------------------------------------------- isomorphism
+    @property
+    def hash_is_canonical(self) -> bool:
+        """True when ``content_hash`` is an exact isomorphism class hash."""
+        return self.n_vertices <= CANONICAL_MAX_VERTICES
+
+    def canonical_form(self) -> tuple[tuple[int, ...], ...]:
+        """The lexicographically least facet list over all relabellings to 0..n-1.
+
+        Two complexes have the same canonical form iff they are isomorphic.
+        Computed by individualisation-refinement (a partition of the vertices refined by
+        incidence counts, branches over a non-singleton cell, pruned by interchangeable
+        vertices); meant for small complexes (cost grows with the automorphism group).
+        """
+        return self._cached("canonical_form", lambda: _canonical_form(self))
+
+    @property
+    def content_hash(self) -> str:
+        """SHA-256 (hex) identifying the complex up to isomorphism; see module docstring."""
+        def compute():
+            if self.hash_is_canonical:
+                payload = {"canonical": [list(f) for f in self.canonical_form()],
+                           "n": self.n_vertices}
+            else:
+                payload = {"invariant": _refinement_invariant(self), "f": list(self.f_vector)}
+            text = json.dumps(payload, separators=(",", ":"), sort_keys=True)
+            return hashlib.sha256(text.encode()).hexdigest()
+        return self._cached("content_hash", compute)
+
+    def is_isomorphic(self, other: "Complex") -> bool:
+        """Exact isomorphism test (for complexes small enough for canonical forms)."""
+        return (self.f_vector == other.f_vector and self.n_vertices == other.n_vertices
+                and self.canonical_form() == other.canonical_form())
+
+
+# ------------------------------------------------------------------------------
+# Canonical form by individualisation-refinement.
+
+def _refine(partition: list[list[int]], incidences: list[list[tuple[int, ...]]]) -> list[list[int]]:
+    """Refine an ordered partition of vertices until equitable with respect to facets.
+
+    A vertex's signature is, for each facet containing it, the sorted tuple of the
+    cells of the facet's vertices; vertices in one cell with different signature
+    multisets are split, in a labelling-independent order.
+    """
+    while True:
+        cell_of = {}
+        for c, cell in enumerate(partition):
+            for v in cell:
+                cell_of[v] = c
+        new_partition = []
+        changed = False
+        for cell in partition:
+            if len(cell) == 1:
+                new_partition.append(cell)
+                continue
+            groups: dict = {}
+            for v in cell:
+                signature = tuple(sorted(tuple(sorted(cell_of[w] for w in f))
+                                         for f in incidences[v]))
+                groups.setdefault(signature, []).append(v)
+            if len(groups) > 1:
+                changed = True
+            for signature in sorted(groups):
+                new_partition.append(groups[signature])
+        partition = new_partition
+        if not changed:
+            return partition
+
+
+def _canonical_form(K: Complex) -> tuple[tuple[int, ...], ...]:
+    n = K.n_vertices
+    facets = K.facets
+    incidences = [[] for _ in range(n)]
+    for f in facets:
+        for v in f:
+            incidences[v].append(f)
+    facet_set = set(facets)
+
+    def swappable(u: int, v: int) -> bool:
+        def image(f):
+            return tuple(sorted(v if w == u else u if w == v else w for w in f))
+        return all(image(f) in facet_set for f in incidences[u] + incidences[v])
+
+    best = None
+
+    def encode(order: list[int]) -> tuple:
+        position = {v: i for i, v in enumerate(order)}
+        return tuple(sorted(tuple(sorted(position[v] for v in f)) for f in facets))
+
+    def search(partition):
+        nonlocal best
+        partition = _refine(partition, incidences)
+        if all(len(cell) == 1 for cell in partition):
+            form = encode([cell[0] for cell in partition])
+            if best is None or form < best:
+                best = form
+            return
+        target = next(i for i, cell in enumerate(partition) if len(cell) > 1)
+        cell = partition[target]
+        representatives = []
+        for v in cell:  # interchangeable vertices give the same leaves: branch on one
+            if not any(swappable(u, v) for u in representatives):
+                representatives.append(v)
+        for v in representatives:
+            rest = [u for u in cell if u != v]
+            search(partition[:target] + [[v], rest] + partition[target + 1:])
+
+    # initial cells: by the number of facets of each size containing the vertex
+    groups: dict = {}
+    for v in range(n):
+        key = tuple(sorted(len(f) for f in incidences[v]))
+        groups.setdefault(key, []).append(v)
+    search([groups[k] for k in sorted(groups)])
+    return best if best is not None else ()
+
+
+def _refinement_invariant(K: Complex, rounds: int = 6) -> list:
+    """Colour refinement on the vertex-simplex incidence: a sorted multiset of colours."""
+    colour = {v: (len(K.vertex_stars()[v]),) for v in range(K.n_vertices)}
+    for _ in range(rounds):
+        new = {}
+        for v in range(K.n_vertices):
+            around = sorted(tuple(sorted(colour[w] for w in K.simplices[j]))
+                            for j in K.vertex_stars()[v])
+            new[v] = hashlib.sha256(repr((colour[v], around)).encode()).hexdigest()[:16]
+        colour = new
+    return sorted(colour.values())

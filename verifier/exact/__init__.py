@@ -1,0 +1,17 @@
+"""Exact arithmetic: the only part of the project that talks to python-flint.
+
+Everything above this package sees :class:`Matrix`, :class:`Poly`, :class:`Verdict`,
+Python ints and ``fractions.Fraction``, never a python-flint type.
+"""
+
+from .linalg import (Verdict, charpoly, charpoly_is_reciprocal, charpoly_of_square, det,
+                     inverse, invariant_factors, is_inverse, kernel_dim, multiplicity, rank,
+                     rank_mod, signature, unit_ldl)
+from .matrix import ExactError, Matrix
+from .poly import Poly
+
+__all__ = [
+    "Matrix", "Poly", "Verdict", "ExactError", "charpoly", "charpoly_is_reciprocal",
+    "charpoly_of_square", "det", "inverse", "invariant_factors", "is_inverse", "kernel_dim",
+    "multiplicity", "rank", "rank_mod", "signature", "unit_ldl",
+]
