@@ -29,8 +29,11 @@ from __future__ import annotations
 import hashlib
 import json
 from collections.abc import Hashable, Iterable
-from itertools import combinations
+from itertools import chain, combinations
 from pathlib import Path
+
+import numpy as np
+import scipy.sparse as sp
 
 __all__ = ["Complex", "ComplexError", "CANONICAL_MAX_VERTICES"]
 
@@ -256,23 +259,43 @@ class Complex:
         """The facets in the user's labels (for printing and certificates)."""
         return [list(self.label_of(f)) for f in self.facets]
 
-    def containments(self) -> tuple[list[int], list[int]]:
+    def vertex_incidence(self) -> tuple[np.ndarray, np.ndarray]:
+        """The pairs (simplex position, vertex index) with the vertex in the simplex,
+        as two parallel int64 arrays (the nonzeros of the simplex-vertex incidence matrix)."""
+        def compute():
+            sizes = np.fromiter((len(s) for s in self.simplices), dtype=np.int64,
+                                count=len(self.simplices))
+            rows = np.repeat(np.arange(len(self.simplices), dtype=np.int64), sizes)
+            cols = np.fromiter(chain.from_iterable(self.simplices), dtype=np.int64,
+                               count=int(sizes.sum()))
+            return rows, cols
+        return self._cached("vertex_incidence", compute)
+
+    def containments(self) -> tuple[np.ndarray, np.ndarray]:
         """All pairs (x, z) of simplex positions with x a face of z (x = z included).
 
-        Returned as two parallel lists ``(faces, cofaces)``; there are
+        Returned as two parallel int64 arrays ``(faces, cofaces)``; there are
         sum over z of (2^|z| - 1) pairs.  This is the incidence structure of the face
         poset, from which the connection matrix, its factorisation and the Green
-        function are built.
+        function are built.  Computed without enumerating subsets: x is a face of z
+        exactly when x and z share |x| vertices, read off from V V^T with V the
+        simplex-vertex incidence matrix.
         """
         def compute():
-            index = self.index
-            faces, cofaces = [], []
-            for j, z in enumerate(self.simplices):
-                for k in range(1, len(z) + 1):
-                    for x in combinations(z, k):
-                        faces.append(index[x])
-                        cofaces.append(j)
-            return faces, cofaces
+            n = len(self.simplices)
+            rows, cols = self.vertex_incidence()
+            sizes = np.bincount(rows, minlength=n)
+            if n * n <= 250_000:
+                V = np.zeros((n, self.n_vertices), dtype=np.float64)
+                V[rows, cols] = 1.0
+                shared = V @ V.T                     # small integers: exact in floating point
+                faces, cofaces = np.nonzero(shared == sizes[:, None])
+            else:
+                V = sp.csr_array((np.ones(len(rows)), (rows, cols)), shape=(n, self.n_vertices))
+                shared = (V @ V.T).tocoo()
+                keep = shared.data == sizes[shared.row]
+                faces, cofaces = shared.row[keep], shared.col[keep]
+            return faces.astype(np.int64), cofaces.astype(np.int64)
         return self._cached("containments", compute)
 
     def vertex_stars(self) -> tuple[tuple[int, ...], ...]:

@@ -34,12 +34,14 @@ from collections.abc import Iterable
 from fractions import Fraction
 from itertools import combinations
 
+import numpy as np
+
 from . import exact, operations
 from .complex import Complex
 from .exact import Matrix, Poly, Verdict
 
 __all__ = [
-    "omega", "dim", "size", "f_vector", "euler", "wu", "connection", "green",
+    "omega", "dim", "size", "f_vector", "euler", "wu", "connection", "green", "green_many",
     "green_by_inversion", "fredholm", "boundary_matrix", "exterior_derivative", "dirac",
     "hodge", "signless_dirac", "signless_hodge", "betti", "charpoly", "is_reciprocal",
     "signature", "multiplicity", "zeta", "curvature", "index", "indices", "is_closed_manifold",
@@ -106,14 +108,16 @@ def euler(K: Complex | Iterable) -> int:
     return sum(omega(x) for x in K)
 
 
+def _omega_vector(K: Complex) -> np.ndarray:
+    """omega(x) for every simplex, in simplex order."""
+    return 1 - 2 * (np.asarray(K.dims, dtype=np.int64) % 2)
+
+
 def _star_euler(K: Complex) -> list[int]:
     """chi(St(z)) = sum over simplices containing z of omega, for every simplex z."""
-    dims = K.dims
     faces, cofaces = K.containments()
-    chi = [0] * len(K.simplices)
-    for x, z in zip(faces, cofaces):
-        chi[x] += 1 if dims[z] % 2 == 0 else -1
-    return chi
+    chi = np.bincount(faces, weights=_omega_vector(K)[cofaces], minlength=len(K.simplices))
+    return [int(round(c)) for c in chi]   # integer sums of +-1 below 2^53: exact
 
 
 def wu(K: Complex) -> int:
@@ -135,12 +139,9 @@ def wu(K: Complex) -> int:
 
 # ------------------------------------------------------------ connection, green
 def _vertex_incidence(K: Complex) -> Matrix:
-    rows, cols = [], []
-    for j, s in enumerate(K.simplices):
-        for v in s:
-            rows.append(j)
-            cols.append(v)
-    return Matrix.from_entries((len(K.simplices), K.n_vertices), rows, cols, [1] * len(rows))
+    rows, cols = K.vertex_incidence()
+    return Matrix.from_entries((len(K.simplices), K.n_vertices), rows, cols,
+                               np.ones(len(rows), dtype=np.int64))
 
 
 def connection(K: Complex) -> Matrix:
@@ -157,9 +158,8 @@ def connection(K: Complex) -> Matrix:
     """
     if not K.simplices:
         return Matrix.zeros(0)
-    shared = (_vertex_incidence(K) @ _vertex_incidence(K).T).to_scipy()
-    shared.data[:] = 1
-    return Matrix.from_scipy(shared)
+    V = _vertex_incidence(K)
+    return (V @ V.T).support()   # (V V^T)[x, y] = number of common vertices
 
 
 def fredholm(K: Complex) -> int:
@@ -176,11 +176,10 @@ def fredholm(K: Complex) -> int:
 def _containment_mobius(K: Complex) -> Matrix:
     """M[x, z] = (-1)^(dim z - dim x) if x is a face of z: the inverse of the containment
     matrix Z[x, z] = [x subset of z] (Mobius inversion on the face poset)."""
-    dims = K.dims
     faces, cofaces = K.containments()
-    values = [1 if (dims[z] - dims[x]) % 2 == 0 else -1 for x, z in zip(faces, cofaces)]
+    w = _omega_vector(K)
     n = len(K.simplices)
-    return Matrix.from_entries((n, n), faces, cofaces, values)
+    return Matrix.from_entries((n, n), faces, cofaces, w[faces] * w[cofaces])
 
 
 def green(K: Complex) -> Matrix:
@@ -202,12 +201,31 @@ def green(K: Complex) -> Matrix:
     if n == 0:
         return Matrix.zeros(0)
     M = _containment_mobius(K)
-    signs = Matrix.from_entries((n, n), range(n), range(n), [omega(x) for x in K.simplices])
+    signs = Matrix.from_entries((n, n), np.arange(n), np.arange(n), _omega_vector(K))
     candidate = M @ signs @ M.T
     L = connection(K)
     if exact.is_inverse(L, candidate):
         return candidate.with_provenance("star formula, verified L*g = I exactly")
     return green_by_inversion(K)
+
+
+def green_many(complexes: Iterable[Complex]) -> list[Matrix]:
+    """The Green functions of many complexes at once (same values as :func:`green`).
+
+    Small complexes are inverted in batches of equal size in floating point and every
+    proposal is verified exactly (:func:`verifier.exact.inverse_many`); large ones use
+    the star formula.  This is the fast path for families of many small complexes.
+
+    >>> [g.total() for g in green_many([Complex.from_facets([[1, 2]]), Complex.from_facets([[1], [2]])])]
+    [1, 2]
+    """
+    complexes = list(complexes)
+    small = [i for i, K in enumerate(complexes) if 0 < len(K.simplices) <= 200]
+    inverses = exact.inverse_many([connection(complexes[i]) for i in small])
+    result: list[Matrix | None] = [None] * len(complexes)
+    for i, g in zip(small, inverses):
+        result[i] = g
+    return [g if g is not None else green(K) for g, K in zip(result, complexes)]
 
 
 def green_by_inversion(K: Complex) -> Matrix:

@@ -5,13 +5,13 @@ Python ints and ``fractions.Fraction``, never a python-flint type.
 """
 
 from .linalg import (Verdict, charpoly, charpoly_is_reciprocal, charpoly_of_square, det,
-                     inverse, invariant_factors, is_inverse, kernel_dim, multiplicity, rank,
+                     inverse, inverse_many, invariant_factors, is_inverse, kernel_dim, multiplicity, rank,
                      rank_mod, signature, unit_ldl)
 from .matrix import ExactError, Matrix
 from .poly import Poly
 
 __all__ = [
     "Matrix", "Poly", "Verdict", "ExactError", "charpoly", "charpoly_is_reciprocal",
-    "charpoly_of_square", "det", "inverse", "invariant_factors", "is_inverse", "kernel_dim",
+    "charpoly_of_square", "det", "inverse", "inverse_many", "invariant_factors", "is_inverse", "kernel_dim",
     "multiplicity", "rank", "rank_mod", "signature", "unit_ldl",
 ]
