@@ -57,9 +57,14 @@ def test_unimodularity(atlas_complexes):
 
 def test_energy_theorem(atlas_complexes):
     # sum_{x,y} g(x,y) = chi(K): O. Knill, "The energy of a simplicial complex",
-    # Linear Algebra Appl. 600 (2020) 96-129.
-    for name, K in all_cases(atlas_complexes):
+    # Linear Algebra Appl. 600 (2020) 96-129.  Both the single-case and the batched
+    # Green functions are checked, and they must be the same matrix.
+    cases = list(all_cases(atlas_complexes))
+    batched = inv.green_many(K for _, K in cases)
+    for (name, K), g in zip(cases, batched):
         assert inv.green(K).total() == inv.euler(K), name
+        assert g == inv.green(K), name
+        assert "verified" in g.provenance, name
 
 
 def test_green_star_formula_against_exact_inversion(atlas_complexes):

@@ -41,9 +41,10 @@ from .complex import Complex
 from .exact import Matrix, Poly, Verdict
 
 __all__ = [
-    "omega", "dim", "size", "f_vector", "euler", "wu", "connection", "green", "green_many",
-    "green_by_inversion", "fredholm", "boundary_matrix", "exterior_derivative", "dirac",
-    "hodge", "signless_dirac", "signless_hodge", "betti", "charpoly", "is_reciprocal",
+    "simplices", "vertices", "facets", "omega", "dim", "size", "f_vector", "euler", "wu",
+    "connection", "green", "green_many", "green_by_inversion", "fredholm", "boundary_matrix",
+    "exterior_derivative", "dirac", "hodge", "signless_dirac", "signless_hodge", "betti",
+    "charpoly", "is_reciprocal", "det", "trace", "rank", "kernel_dim", "positive", "negative",
     "signature", "multiplicity", "zeta", "curvature", "index", "indices", "is_closed_manifold",
     "is_manifold_with_boundary", "is_manifold", "is_sphere", "is_ball", "NotDecided",
 ]
@@ -61,6 +62,33 @@ def omega(x) -> int:
     (1, -1, 1)
     """
     return -1 if len(x) % 2 == 0 else 1
+
+
+def simplices(K: Complex) -> tuple[tuple, ...]:
+    """All simplices of K in the user's vertex labels, ordered by (dimension, lex).
+
+    >>> simplices(Complex.from_facets([[1, 2]]))
+    ((1,), (2,), (1, 2))
+    """
+    return tuple(K.label_of(s) for s in K.simplices)
+
+
+def vertices(K: Complex) -> tuple:
+    """The vertex labels of K, in order.
+
+    >>> vertices(Complex.from_facets([["b", "a"]]))
+    ('a', 'b')
+    """
+    return K.labels
+
+
+def facets(K: Complex) -> tuple[tuple, ...]:
+    """The maximal simplices of K in the user's labels, ordered by (dimension, lex).
+
+    >>> facets(Complex.from_facets([[1, 2, 3], [3, 4]]))
+    ((3, 4), (1, 2, 3))
+    """
+    return tuple(K.label_of(s) for s in K.facets)
 
 
 def dim(K: Complex) -> int:
@@ -209,22 +237,42 @@ def green(K: Complex) -> Matrix:
     return green_by_inversion(K)
 
 
-def green_many(complexes: Iterable[Complex]) -> list[Matrix]:
-    """The Green functions of many complexes at once (same values as :func:`green`).
+def green_many(complexes: Iterable[Complex], small: int = 200) -> list[Matrix]:
+    """The Green functions of many complexes at once (the same values as :func:`green`).
 
-    Small complexes are inverted in batches of equal size in floating point and every
-    proposal is verified exactly (:func:`verifier.exact.inverse_many`); large ones use
-    the star formula.  This is the fast path for families of many small complexes.
+    Complexes with at most ``small`` simplices are grouped by size and the star formula
+    g = diag(omega) Z diag(omega) Z^T diag(omega) is evaluated for a whole group with
+    stacked floating-point products (Z the containment matrix, read off as the entries of
+    V V^T equal to |x|, V the simplex-vertex incidence); every candidate is accepted
+    only after the exact check L g = I (:func:`verifier.exact.verified_inverse_batch`).
+    Larger complexes, and any candidate that failed, go through :func:`green`.  This is
+    the fast path for families of many small complexes.
 
     >>> [g.total() for g in green_many([Complex.from_facets([[1, 2]]), Complex.from_facets([[1], [2]])])]
     [1, 2]
     """
     complexes = list(complexes)
-    small = [i for i, K in enumerate(complexes) if 0 < len(K.simplices) <= 200]
-    inverses = exact.inverse_many([connection(complexes[i]) for i in small])
     result: list[Matrix | None] = [None] * len(complexes)
-    for i, g in zip(small, inverses):
-        result[i] = g
+    groups: dict[int, list[int]] = {}
+    for position, K in enumerate(complexes):
+        if 0 < len(K.simplices) <= small:
+            groups.setdefault(len(K.simplices), []).append(position)
+    for n, members in groups.items():
+        width = max(complexes[p].n_vertices for p in members)
+        V = np.zeros((len(members), n, width))
+        for k, p in enumerate(members):
+            rows, cols = complexes[p].vertex_incidence()
+            V[k, rows, cols] = 1.0
+        shared = np.matmul(V, V.transpose(0, 2, 1))       # common vertices of x and y
+        sizes = V.sum(axis=2)
+        Z = (shared == sizes[:, :, None]).astype(np.float64)  # Z[x, z] = [x is a face of z]
+        L = (shared > 0).astype(np.float64)
+        w = 1.0 - 2.0 * ((sizes - 1) % 2)                 # omega
+        G = np.matmul(Z * w[:, None, :], Z.transpose(0, 2, 1)) * w[:, :, None] * w[:, None, :]
+        for p, g, ok in zip(members, G, exact.verified_inverse_batch(L, G)):
+            if ok:
+                result[p] = Matrix.from_array(g.astype(np.int64)).with_provenance(
+                    "star formula (batched), verified L*g = I exactly")
     return [g if g is not None else green(K) for g, K in zip(result, complexes)]
 
 
@@ -392,6 +440,60 @@ def signature(M: Matrix) -> tuple[int, int, int]:
     (2, 1, 0)
     """
     return exact.signature(M)
+
+
+def det(M: Matrix):
+    """The exact determinant of a square matrix.
+
+    >>> det(connection(Complex.from_facets([[1, 2]])))
+    -1
+    """
+    return exact.det(M)
+
+
+def trace(M: Matrix):
+    """The exact trace of a square matrix.
+
+    >>> trace(hodge(Complex.from_facets([[1, 2]])))
+    4
+    """
+    return M.trace()
+
+
+def rank(M: Matrix) -> int:
+    """The exact rank over Q.
+
+    >>> rank(boundary_matrix(Complex.from_facets([[1, 2], [2, 3], [1, 3]]), 1))
+    2
+    """
+    return exact.rank(M)
+
+
+def kernel_dim(M: Matrix) -> int:
+    """The dimension of the null space over Q (columns minus rank).
+
+    >>> kernel_dim(hodge(Complex.from_facets([[1, 2], [2, 3], [1, 3]])))   # b_0 + b_1
+    2
+    """
+    return exact.kernel_dim(M)
+
+
+def positive(M: Matrix) -> int:
+    """The number of positive eigenvalues of a symmetric matrix, exact.
+
+    >>> positive(connection(Complex.from_facets([[1, 2]])))
+    2
+    """
+    return exact.signature(M)[0]
+
+
+def negative(M: Matrix) -> int:
+    """The number of negative eigenvalues of a symmetric matrix, exact.
+
+    >>> negative(connection(Complex.from_facets([[1, 2]])))
+    1
+    """
+    return exact.signature(M)[1]
 
 
 def multiplicity(M: Matrix, value) -> int:

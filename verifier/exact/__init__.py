@@ -6,12 +6,12 @@ Python ints and ``fractions.Fraction``, never a python-flint type.
 
 from .linalg import (Verdict, charpoly, charpoly_is_reciprocal, charpoly_of_square, det,
                      inverse, inverse_many, invariant_factors, is_inverse, kernel_dim, multiplicity, rank,
-                     rank_mod, signature, unit_ldl)
+                     rank_mod, signature, unit_ldl, verified_inverse_batch)
 from .matrix import ExactError, Matrix
 from .poly import Poly
 
 __all__ = [
     "Matrix", "Poly", "Verdict", "ExactError", "charpoly", "charpoly_is_reciprocal",
     "charpoly_of_square", "det", "inverse", "inverse_many", "invariant_factors", "is_inverse", "kernel_dim",
-    "multiplicity", "rank", "rank_mod", "signature", "unit_ldl",
+    "multiplicity", "rank", "rank_mod", "signature", "unit_ldl", "verified_inverse_batch",
 ]

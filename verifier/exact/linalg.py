@@ -27,7 +27,7 @@ from .matrix import SAFE, ExactError, Matrix
 from .poly import Poly
 
 __all__ = [
-    "Verdict", "det", "rank", "rank_mod", "inverse", "inverse_many", "is_inverse", "charpoly",
+    "Verdict", "det", "rank", "rank_mod", "inverse", "inverse_many", "verified_inverse_batch", "is_inverse", "charpoly",
     "charpoly_of_square", "signature", "unit_ldl", "multiplicity", "kernel_dim",
     "charpoly_is_reciprocal", "invariant_factors", "FLOAT_PROPOSAL_MAX",
 ]
@@ -187,15 +187,34 @@ def inverse(M: Matrix) -> Matrix:
     return G.with_provenance("exact solve (python-flint), verified M*G = I exactly")
 
 
+def verified_inverse_batch(A: np.ndarray, G: np.ndarray) -> np.ndarray:
+    """Which proposed inverses are right: a boolean mask over a stack of pairs.
+
+    A and G are float64 arrays of shape (b, n, n) holding integers.  Entry k is True
+    when A[k] @ G[k] == I holds exactly.  The products are computed in floating point
+    only for pairs in which every partial sum is an integer of absolute value below
+    2^53 (max row sum of |A[k]| times max |G[k]|): IEEE double arithmetic represents and
+    adds such integers exactly, so the floating-point product is the exact product.
+    Pairs outside that bound, or with non-integer entries, are reported False.
+    """
+    if A.shape[0] == 0:
+        return np.zeros(0, dtype=bool)
+    integral = np.all(np.isfinite(G) & (G == np.rint(G)), axis=(1, 2)) & \
+        np.all(A == np.rint(A), axis=(1, 2))
+    bound = np.abs(A).sum(axis=2).max(axis=1) * np.where(integral, np.abs(G).max(axis=(1, 2)), 0)
+    safe = integral & (bound < 2.0 ** 52)
+    products = np.matmul(np.where(safe[:, None, None], A, 0.0), np.where(safe[:, None, None], G, 0.0))
+    identity = np.identity(A.shape[1])
+    return safe & np.all(products == identity, axis=(1, 2))
+
+
 def inverse_many(matrices: list[Matrix]) -> list[Matrix]:
-    """Exact inverses of many integer matrices, proposed in batches and checked one by one.
+    """Exact inverses of many integer matrices, proposed in batches and checked exactly.
 
     Matrices of equal order (up to FLOAT_PROPOSAL_MAX) are stacked and inverted together
-    in floating point; each rounded proposal G is accepted only when M @ G == I holds
-    exactly -- computed in floating point only when every partial sum is an integer below
-    2^53, so that the floating-point product is exact.  Anything not accepted goes through
-    :func:`inverse`.  Same answers as ``[inverse(M) for M in matrices]``, much faster for
-    many small matrices.
+    in floating point; each rounded proposal is accepted only when
+    :func:`verified_inverse_batch` confirms M @ G == I exactly.  Anything not accepted
+    goes through :func:`inverse`.  Same answers as ``[inverse(M) for M in matrices]``.
     """
     results: list[Matrix | None] = [None] * len(matrices)
     groups: dict[int, list[int]] = {}
@@ -209,13 +228,8 @@ def inverse_many(matrices: list[Matrix]) -> list[Matrix]:
             G = np.rint(np.linalg.inv(A))
         except np.linalg.LinAlgError:
             continue
-        identity = np.identity(n)
-        for k, p in enumerate(members):
-            g = G[k]
-            if not np.all(np.isfinite(g)):
-                continue
-            bound = int(np.abs(A[k]).sum(axis=1).max()) * int(np.abs(g).max())
-            if bound < (1 << 53) and np.array_equal(A[k] @ g, identity):
+        for p, g, ok in zip(members, G, verified_inverse_batch(A, G)):
+            if ok:
                 results[p] = Matrix.from_array(g.astype(np.int64)).with_provenance(
                     "float proposal, verified M*G = I exactly")
     return [G if G is not None else inverse(M) for G, M in zip(results, matrices)]

@@ -1,0 +1,79 @@
+"""The `verifier` command as a user types it."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+
+from verifier.cli import main
+
+
+def run(*args):
+    return subprocess.run([sys.executable, "-m", "verifier", *args], capture_output=True,
+                          text=True, timeout=120)
+
+
+def test_show_prints_exact_invariants_of_the_torus(capsys):
+    # 7-vertex torus (Moebius 1861 / Csaszar 1949): f = (7, 21, 14), chi = 0,
+    # Betti numbers (1, 2, 1) -- values recorded with their source in
+    # verifier/families/data/triangulations.json.
+    assert main(["show", "torus-7"]) == 0
+    out = capsys.readouterr().out
+    assert "[7, 21, 14]" in out
+    assert "[1, 2, 1]" in out
+    assert "closed manifold" in out
+    # det L = prod omega = (-1)^(f_1) = -1 (Knill, arXiv:1612.08229); signature of L is
+    # (#even, #odd simplices) = (21, 21, 0) (Knill, arXiv:1711.09527)
+    assert "-1" in out and "(21, 21, 0)" in out
+
+
+def test_show_reads_a_facet_file(tmp_path, capsys):
+    # a hollow triangle: the circle, chi = 0, b = (1, 1) (hand computation)
+    path = tmp_path / "circle.txt"
+    path.write_text("# three edges\n1 2\n2 3\n1, 3\n")
+    assert main(["show", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert "[3, 3]" in out and "[1, 1]" in out
+
+
+def test_show_reads_json(tmp_path, capsys):
+    path = tmp_path / "edge.json"
+    path.write_text(json.dumps({"facets": [[1, 2]]}))
+    assert main(["show", str(path)]) == 0
+    assert "[2, 1]" in capsys.readouterr().out
+
+
+def test_unknown_name_is_one_line_with_a_suggestion_and_exit_2():
+    result = run("show", "tours-7")
+    assert result.returncode == 2
+    assert "unknown catalog name 'tours-7'; did you mean 'torus-7'?" in result.stderr
+    assert "Traceback" not in result.stderr and result.stdout == ""
+
+
+def test_bad_file_names_line_and_exit_2(tmp_path):
+    path = tmp_path / "bad.txt"
+    path.write_text("1 2 3\n4 4\n")
+    result = run("show", str(path))
+    assert result.returncode == 2
+    assert f"{path}:2: repeated vertex in [4, 4]" in " ".join(result.stderr.split())
+    assert "Traceback" not in result.stderr
+
+
+def test_missing_file_exit_2(tmp_path):
+    result = run("show", str(tmp_path / "nothing.txt"))
+    assert result.returncode == 2
+    assert "no such file" in result.stderr
+
+
+def test_all_inputs_are_checked_before_any_output(capsys):
+    assert main(["show", "torus-7", "no-such-complex"]) == 2
+    assert "[7, 21, 14]" not in capsys.readouterr().out
+
+
+def test_list_names_every_catalog_entry(capsys):
+    from verifier.families import catalog
+    assert main(["show", "--list"]) == 0
+    out = capsys.readouterr().out
+    for name in catalog.names():
+        assert name in out
