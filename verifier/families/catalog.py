@@ -134,8 +134,8 @@ def _unknown(name) -> CatalogError:
     close = difflib.get_close_matches(str(name), candidates, n=4, cutoff=0.5)
     hint = f"; did you mean {', '.join(repr(c) for c in close)}?" if close else ""
     return CatalogError(
-        f"unknown catalog name {name!r}{hint} (recorded names: see names(); constructed "
-        f"series: {', '.join(patterns())})")
+        f"unknown catalog name {name!r}{hint} (`verifier show --list` lists the names; "
+        f"constructed series: {', '.join(patterns())})")
 
 
 def _parse(name: str):
