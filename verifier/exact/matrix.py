@@ -78,6 +78,9 @@ class Matrix:
     def __setattr__(self, name, value):
         raise AttributeError("Matrix is immutable")
 
+    def __delattr__(self, name):
+        raise AttributeError("Matrix is immutable")
+
     def with_provenance(self, text: str) -> "Matrix":
         """The same matrix, recording how it was obtained."""
         return Matrix(self.shape, self._int, self._dense, text)
@@ -375,6 +378,12 @@ class Matrix:
             return int(data.sum()) if len(data) * _max_abs(data) < SAFE else sum(int(x) for x in data)
         total = sum(Fraction(_to_python(x)) for x in self._dense.entries())
         return int(total) if total.denominator == 1 else total
+
+    def entrywise_abs(self) -> "Matrix":
+        """The matrix of absolute values of the entries."""
+        if self._int is not None:
+            return Matrix(self.shape, int64=abs(self._int))
+        return Matrix.from_rows([[abs(x) for x in row] for row in self.rows()])
 
     def support(self) -> "Matrix":
         """The 0/1 matrix with a 1 where this matrix has a nonzero entry."""
