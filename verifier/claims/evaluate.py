@@ -49,8 +49,8 @@ class Context:
 
     def __post_init__(self):
         if self.table is None:
-            from .functions import FUNCTIONS
-            self.table = {name: f.impl for name, f in FUNCTIONS.items()}
+            from .backend import IMPLEMENTATIONS
+            self.table = IMPLEMENTATIONS
         if self.limits.seconds is not None and self.deadline is None:
             self.deadline = time.monotonic() + self.limits.seconds
 
@@ -84,8 +84,8 @@ def _normal(x):
 
 
 def _unwrap_poly(x):
-    from .functions import _poly
-    return _poly(x)
+    """A lazily computed characteristic polynomial (any backend) as a polynomial."""
+    return x.poly if hasattr(x, "poly") and hasattr(x, "matrix") else x
 
 
 def _power(base, exponent, ctx: Context, node: Node):

@@ -328,6 +328,13 @@ def _refusal(node) -> str:
     return f"{type(node).__name__} is not allowed in a claim expression"
 
 
+def _unshift(tree):
+    """Undo the opening parenthesis added before parsing: columns on line 1 move back."""
+    for node in ast.walk(tree):
+        if getattr(node, "lineno", None) == 1 and hasattr(node, "col_offset"):
+            node.col_offset = max(node.col_offset - 1, 0)
+
+
 def parse(text: str, variables: dict[str, str], where: Place | None = None) -> Node:
     """Parse and check an expression; ``variables`` maps bound names to their types.
 
@@ -351,11 +358,14 @@ def parse(text: str, variables: dict[str, str], where: Place | None = None) -> N
                                   Place(None, 1, 1))
         if "\x00" in text:
             raise ExpressionError("expression contains a NUL character", Place(None, 1, 1))
-        try:
-            tree = ast.parse(text.strip("\n"), mode="eval")
+        try:  # parenthesised, so that a statement may span several lines
+            tree = ast.parse("(" + text + "\n)", mode="eval")
+            _unshift(tree)
         except SyntaxError as error:
+            line = error.lineno or 1
+            column = (error.offset or 2) - (1 if line == 1 else 0)
             raise ExpressionError(f"syntax error: {error.msg}",
-                                  Place(None, error.lineno or 1, error.offset or 1)) from None
+                                  Place(None, line, max(column, 1))) from None
         except (RecursionError, MemoryError, ValueError):
             raise ExpressionError("expression too deeply nested", Place(None, 1, 1)) from None
         try:

@@ -1,0 +1,261 @@
+"""The main backend of the claim language: adapters over the library.
+
+Each function of the table (:mod:`verifier.claims.functions`) is implemented here by the
+adapter whose name the table gives; adapters translate between the language's values
+(simplices as tuples of vertex labels, :class:`~verifier.claims.values.Indexed` matrices)
+and the library's (simplices as tuples of vertex indices, :class:`verifier.exact.Matrix`).
+The independent backend (:mod:`verifier.independent.claims`) provides the same names.
+"""
+
+from __future__ import annotations
+
+from .. import exact, invariants as inv, operations as ops
+from ..complex import Complex
+from .errors import EvaluationError
+from .values import Indexed
+
+
+def _simplex(K: Complex, x) -> tuple[int, ...]:
+    try:
+        return K.simplex_of(x)
+    except (KeyError, TypeError):
+        raise EvaluationError(f"{list(x)!r} is not a simplex of the complex") from None
+
+
+def _labels(K: Complex, simplices) -> tuple:
+    return tuple(K.label_of(s) for s in simplices)
+
+
+def _keyed(K: Complex, matrix) -> Indexed:
+    keys = _labels(K, K.simplices)
+    return Indexed(matrix, keys, keys)
+
+
+def _positions_to_set(K: Complex, positions) -> frozenset:
+    return frozenset(K.label_of(K.simplices[j]) for j in positions)
+
+
+def _dim(x):
+    return x.dim if isinstance(x, Complex) else len(x) - 1
+
+
+def _size(x):
+    if isinstance(x, Complex):
+        return len(x.simplices)
+    if isinstance(x, Indexed):
+        return x.matrix.shape[0]
+    return len(x)
+
+
+def _euler(x):
+    return inv.euler(x)
+
+
+def _matrix(M: Indexed):
+    return M.matrix
+
+
+def _boundary_matrix(K: Complex, k: int) -> Indexed:
+    if not isinstance(k, int) or k < 0:
+        raise EvaluationError(f"boundary_matrix needs a dimension k >= 0, got {k}")
+    rows = _labels(K, [s for s in K.simplices if len(s) == k])
+    cols = _labels(K, [s for s in K.simplices if len(s) == k + 1])
+    return Indexed(inv.boundary_matrix(K, k), rows, cols)
+
+
+def _identity(n):
+    if isinstance(n, Complex):
+        return _keyed(n, exact.Matrix.identity(len(n.simplices)))
+    if not isinstance(n, int) or n < 0:
+        raise EvaluationError(f"identity needs a size n >= 0 or a complex, got {n}")
+    return Indexed(exact.Matrix.identity(n))
+
+
+def _transpose(M: Indexed) -> Indexed:
+    return Indexed(M.matrix.T, M.cols, M.rows)
+
+
+def _abs(x):
+    if isinstance(x, Indexed):
+        return Indexed(x.matrix.entrywise_abs(), x.rows, x.cols)
+    return abs(x)
+
+
+def _betti(K: Complex, k=None, p: int = 0):
+    if p and not _is_prime(p):
+        raise EvaluationError(f"betti over Z/p needs a prime p, got {p}")
+    numbers = inv.betti(K, k, p=p)
+    return tuple(numbers) if k is None else numbers
+
+
+def _is_prime(p: int) -> bool:
+    return p >= 2 and all(p % d for d in range(2, int(p ** 0.5) + 1))
+
+
+def _signature(M: Indexed) -> tuple:
+    return tuple(exact.signature(M.matrix))
+
+
+def _charpoly(M: Indexed):
+    return CharPoly(M.matrix)
+
+
+class CharPoly:
+    """The characteristic polynomial of a matrix, computed only when its coefficients are
+    needed: ``is_reciprocal`` of a large matrix's charpoly uses the randomized test
+    instead (its evidence level is recorded by the evaluator)."""
+
+    def __init__(self, matrix):
+        self.matrix = matrix
+        self._poly = None
+
+    @property
+    def poly(self):
+        if self._poly is None:
+            self._poly = exact.charpoly(self.matrix)
+        return self._poly
+
+
+def _poly(p):
+    return p.poly if isinstance(p, CharPoly) else p
+
+
+def _is_reciprocal(p, ctx=None):
+    if isinstance(p, CharPoly) and p._poly is None:
+        verdict = exact.charpoly_is_reciprocal(p.matrix)
+        if ctx is not None:
+            ctx.note_evidence(verdict.evidence, verdict.error_bound)
+        return verdict.value
+    return _poly(p).is_reciprocal()
+
+
+def _multiplicity(M: Indexed, value) -> int:
+    return exact.multiplicity(M.matrix, value)
+
+
+def _zeta(M: Indexed, s: int):
+    if not isinstance(s, int):
+        raise EvaluationError(f"zeta is evaluated at integers only, got {s}")
+    return inv.zeta(M.matrix, s)
+
+
+def _star(K: Complex, x) -> frozenset:
+    return _positions_to_set(K, ops.star(K, _simplex(K, x)))
+
+
+def _closed_star(K, x):
+    return ops.closed_star(K, _simplex(K, x))
+
+
+def _link(K, x):
+    return ops.link(K, _simplex(K, x))
+
+
+def _unit_sphere(K, x):
+    return ops.unit_sphere(K, _simplex(K, x))
+
+
+def _interior(K):
+    return _positions_to_set(K, ops.interior(K))
+
+
+def _refine(K, times=1):
+    if not isinstance(times, int) or not 0 <= times <= 4:
+        raise EvaluationError(f"refine takes 0 to 4 refinements, got {times}")
+    return ops.refine(K, times)
+
+
+def _skeleton(K, k):
+    return ops.skeleton(K, k)
+
+
+def _union(a, b):
+    if isinstance(a, Complex) and isinstance(b, Complex):
+        return ops.disjoint_union(a, b)
+    if isinstance(a, frozenset) and isinstance(b, frozenset):
+        return a | b
+    raise EvaluationError("union takes two complexes (disjoint union) or two sets of simplices")
+
+
+def _vertex(K: Complex, v) -> int:
+    simplex = _simplex(K, v)
+    if len(simplex) != 1:
+        raise EvaluationError(f"{list(v)!r} is not a vertex")
+    return simplex[0]
+
+
+def _curvature(K, v):
+    return inv.curvature(K, _vertex(K, v))
+
+
+def _index(K, v):
+    return inv.index(K, list(range(K.n_vertices)), _vertex(K, v))
+
+
+def _f_vector(K):
+    return tuple(K.f_vector)
+
+
+def _simplices(K):
+    return inv.simplices(K)
+
+
+def _vertices(K):
+    return tuple((v,) for v in K.labels)
+
+
+def _facets(K):
+    return inv.facets(K)
+
+
+def _omega(x):
+    return inv.omega(tuple(x))
+
+
+def _det(M):
+    return exact.det(M.matrix)
+
+
+def _trace(M):
+    return M.matrix.trace()
+
+
+def _rank(M):
+    return exact.rank(M.matrix)
+
+
+def _kernel_dim(M):
+    return exact.kernel_dim(M.matrix)
+
+
+def _positive(M):
+    return exact.signature(M.matrix)[0]
+
+
+def _negative(M):
+    return exact.signature(M.matrix)[1]
+
+
+def _with_keys(build):
+    return lambda K: _keyed(K, build(K))
+
+
+
+
+IMPLEMENTATIONS = {
+    "simplices": _simplices, "vertices": _vertices, "facets": _facets, "dim": _dim,
+    "size": _size, "f_vector": _f_vector, "omega": _omega, "euler": _euler, "wu": inv.wu,
+    "connection": _with_keys(inv.connection), "green": _with_keys(inv.green),
+    "hodge": _with_keys(inv.hodge), "signless_hodge": _with_keys(inv.signless_hodge),
+    "dirac": _with_keys(inv.dirac), "boundary_matrix": _boundary_matrix,
+    "identity": _identity, "transpose": _transpose, "abs": _abs, "det": _det,
+    "trace": _trace, "rank": _rank, "kernel_dim": _kernel_dim, "charpoly": _charpoly,
+    "is_reciprocal": _is_reciprocal, "signature": _signature, "positive": _positive,
+    "negative": _negative, "multiplicity": _multiplicity, "zeta": _zeta, "betti": _betti,
+    "is_manifold": inv.is_manifold, "is_manifold_with_boundary": inv.is_manifold_with_boundary,
+    "is_closed_manifold": inv.is_closed_manifold, "curvature": _curvature, "index": _index,
+    "star": _star, "closed_star": _closed_star, "link": _link, "unit_sphere": _unit_sphere,
+    "boundary": ops.boundary, "interior": _interior, "refine": _refine, "join": ops.join,
+    "cone": ops.cone, "suspension": ops.suspension, "product": ops.product,
+    "skeleton": _skeleton, "union": _union,
+}

@@ -1,0 +1,138 @@
+"""Cases: what is tested, and the evaluation of one case.
+
+A claim's cases come from its families: the union of the families bound to the same
+variable, the product over different variables (capped by ``max_cases``).  A case is
+named by a stable id built from the families' case ids, so that any process can rebuild
+its complexes from the id alone (:func:`evaluate_case`), and a resumed run can tell which
+cases are done.
+
+The batch function :func:`run_batch` is what engines ship to workers: it takes plain
+data (the claim files, the claim name, the case ids, the limits) and returns plain
+records, so it runs the same in a local process or on a cluster.
+"""
+
+from __future__ import annotations
+
+import itertools
+import time
+from dataclasses import asdict
+from functools import lru_cache
+
+from ..claims.errors import ClaimError, LimitExceeded
+from ..claims.evaluate import Context, Limits, evaluate, evaluate_claim
+from ..claims.loader import Claim, load_paths
+
+__all__ = ["case_parts", "plan", "evaluate_case", "run_batch", "EVIDENCE_ORDER", "join_id",
+           "split_id"]
+
+EVIDENCE_ORDER = ["exact", "certified", "probabilistic", "float"]
+SEPARATOR = " & "
+
+
+def join_id(parts: list[tuple[int, str]]) -> str:
+    """The case id of a combination of family cases: 'ref|id' joined by ' & '."""
+    return SEPARATOR.join(f"{ref}|{cid}" for ref, cid in parts)
+
+
+def split_id(case_id: str) -> list[tuple[int, str]]:
+    parts = []
+    for piece in case_id.split(SEPARATOR):
+        ref, cid = piece.split("|", 1)
+        parts.append((int(ref), cid))
+    return parts
+
+
+def case_parts(claim: Claim):
+    """For each bound variable (in order), the (over-entry index, case id) pairs it ranges
+    over: the union of its families' cases."""
+    per_variable = []
+    for variable in claim.variables:
+        per_variable.append([(i, cid) for i, ref in enumerate(claim.over) if ref.bind == variable
+                             for cid in ref.family.case_ids()])
+    return per_variable
+
+
+def plan(claim: Claim, max_cases: int | None = None):
+    """The case ids of a claim, lazily, in a fixed order (at most ``max_cases``)."""
+    cap = min(x for x in (claim.max_cases, max_cases) if x is not None) \
+        if (claim.max_cases or max_cases) else None
+    if len(claim.variables) == 1:
+        variable = claim.variables[0]
+        ids = (join_id([(i, cid)]) for i, ref in enumerate(claim.over) if ref.bind == variable
+               for cid in ref.family.case_ids())
+    else:
+        ids = (join_id(list(combo)) for combo in itertools.product(*case_parts(claim)))
+    return itertools.islice(ids, cap) if cap is not None else ids
+
+
+def family_label(claim: Claim, case_id: str) -> str:
+    return SEPARATOR.join(claim.over[ref].family.name for ref, _ in split_id(case_id))
+
+
+def complexes_of(claim: Claim, case_id: str) -> dict:
+    """The environment of a case: variable -> Complex."""
+    env = {}
+    for ref, cid in split_id(case_id):
+        entry = claim.over[ref]
+        env[entry.bind] = entry.family.get(cid)
+    return env
+
+
+def evaluate_case(claim: Claim, case_id: str, limits: Limits) -> dict:
+    """Evaluate one case: build its complexes, check ``where``, evaluate the statement."""
+    start = time.perf_counter()
+    record = {"claim": claim.name, "case_id": case_id, "family": family_label(claim, case_id)}
+    try:
+        env = complexes_of(claim, case_id)
+        record["complex_hash"] = ",".join(env[v].content_hash for v in claim.variables)
+    except Exception as error:  # a family that cannot build its case: recorded, not fatal
+        record.update(complex_hash="", outcome="error", message=f"building the case: {error}")
+        record["seconds"] = time.perf_counter() - start
+        return record
+    record.update(_judge(claim, env, limits))
+    record["seconds"] = time.perf_counter() - start
+    return record
+
+
+def _judge(claim: Claim, env: dict, limits: Limits) -> dict:
+    """Outcome of the claim on one environment (no timing, no ids)."""
+    try:
+        if claim.where is not None and not evaluate(claim.where, env, Context(limits)):
+            return {"outcome": "outside"}
+        outcome = evaluate_claim(claim.statement, env, Context(limits))
+    except LimitExceeded as error:
+        return {"outcome": "limit", "message": f"{error.limit}: {error.message}"}
+    except ClaimError as error:
+        return {"outcome": "error", "message": error.message}
+    except RecursionError:
+        return {"outcome": "limit", "message": "max_depth: recursion too deep"}
+    result = {"outcome": "holds" if outcome.holds else "fails", "evidence": outcome.evidence,
+              "sides": outcome.sides, "witness": outcome.witness}
+    if EVIDENCE_ORDER.index(outcome.evidence) > EVIDENCE_ORDER.index(claim.evidence):
+        result["outcome"] = "weak"
+        result["message"] = (f"evidence {outcome.evidence} (error bound "
+                             f"{outcome.error_bound}) is weaker than the required {claim.evidence}")
+    return result
+
+
+def holds_on(claim: Claim, env: dict, limits: Limits) -> str:
+    """'fails', 'holds', 'outside' or a problem outcome for an environment (the shrinker's
+    question)."""
+    return _judge(claim, env, limits)["outcome"]
+
+
+@lru_cache(maxsize=8)
+def _claims(files: tuple[str, ...]) -> dict[str, Claim]:
+    return {c.name: c for c in load_paths(list(files))}
+
+
+def run_batch(files: tuple[str, ...], claim_name: str, case_ids: list[str],
+              limits: dict) -> list[dict]:
+    """Evaluate a batch of cases of one claim; plain data in, plain records out."""
+    claim = _claims(tuple(files))[claim_name]
+    bounds = Limits(**limits)
+    return [evaluate_case(claim, case_id, bounds) for case_id in case_ids]
+
+
+def limits_dict(limits: Limits) -> dict:
+    return asdict(limits)
