@@ -1,9 +1,14 @@
 """The ``verifier`` command.
 
-    verifier show COMPLEX [COMPLEX ...]     exact invariants of catalog names or facet files
+    verifier run PATH...          test the claims in claim files or folders
+    verifier check CERT...        re-verify certificates with the independent backend
+    verifier show COMPLEX...      exact invariants of catalog names or facet files
+    verifier functions            the functions of the claim language
+    verifier families             the families claims are tested over
 
 A COMPLEX is a catalog name (``verifier show --list`` prints them) or a path to a facet
-file (text: one facet per line; ``.json``: a list of facets).  Exit codes: 0 success,
+file (text: one facet per line; ``.json``: a list of facets).  Exit codes: 0 success
+(every claim meets its expectation, every certificate verifies), 1 when one does not,
 2 bad input (named in one line on standard error, no traceback).
 """
 
@@ -125,6 +130,126 @@ def cmd_show(args, console: Console) -> int:
     return 0
 
 
+class _Bar:
+    """The progress bar of `verifier run` (rich)."""
+
+    def __init__(self, console: Console):
+        from rich.progress import (BarColumn, MofNCompleteColumn, Progress, TextColumn,
+                                   TimeElapsedColumn, TimeRemainingColumn)
+        self.progress = Progress(TextColumn("{task.description:<28}"), BarColumn(),
+                                 MofNCompleteColumn(), TimeElapsedColumn(),
+                                 TimeRemainingColumn(), console=console, transient=False)
+        self.task = None
+
+    def start(self, claim, total, done):
+        if self.task is None:
+            self.progress.start()
+        self.task = self.progress.add_task(claim.name[:28], total=total, completed=done)
+
+    def advance(self, n):
+        self.progress.advance(self.task, n)
+
+    def done(self):
+        pass
+
+    def stop(self):
+        if self.task is not None:
+            self.progress.stop()
+
+
+def cmd_run(args, console: Console) -> int:
+    from .certificates import write_certificates
+    from .claims.errors import ClaimError
+    from .run.runner import RunOptions, run
+
+    options = RunOptions(store=args.store, workers=args.workers, engine=args.engine,
+                         resume=args.resume, max_cases=args.max_cases,
+                         case_timeout=args.case_timeout, progress=not args.quiet)
+    bar = None if args.quiet else _Bar(console)
+    try:
+        result = run(args.paths, options, progress=bar)
+    except ClaimError as error:
+        raise UserError(str(error)) from None
+    finally:
+        if bar is not None:
+            bar.stop()
+    written = write_certificates(result, args.certificates)
+    table = Table(title=f"run {result.run_id} ({result.engine}, {result.workers} workers"
+                        f"{', resumed' if result.resumed else ''})", title_justify="left")
+    for column in ("claim", "expect", "verdict", "cases", "holds", "fails", "outside",
+                   "other", "time (s)"):
+        table.add_column(column, justify="right" if column not in ("claim", "expect", "verdict")
+                         else "left")
+    for r in result.claims:
+        other = r.counts["error"] + r.counts["limit"] + r.counts["weak"]
+        style = "green" if r.meets_expectation else "red"
+        table.add_row(r.claim.name, r.claim.expect, f"[{style}]{r.verdict}[/{style}]",
+                      str(r.cases), str(r.counts["holds"]), str(r.counts["fails"]),
+                      str(r.counts["outside"]), str(other), f"{r.seconds:.1f}")
+    console.print(table)
+    for r in result.claims:
+        if r.counterexample:
+            c = r.counterexample
+            facets = "; ".join(f"{v} = {f}" for v, f in c["complexes"].items())
+            console.print(f"[bold]{r.claim.name}[/bold]: minimal counterexample {facets}"
+                          f" (from case {c['case_id']}, {len(c['steps'])} shrinking steps)",
+                          highlight=False)
+            if c["sides"]:
+                console.print(f"    sides: {c['sides'][0]}  vs  {c['sides'][1]}", highlight=False)
+        for p in r.problems:
+            console.print(f"[yellow]{r.claim.name}[/yellow]: case {p['case_id']}: "
+                          f"{p['outcome']}: {p['message']}", highlight=False)
+    console.print(f"store: {result.store}; certificates: {len(written)} written to "
+                  f"{args.certificates}; {result.seconds:.1f} s", highlight=False)
+    return 0 if result.ok else 1
+
+
+def cmd_check(args, console: Console) -> int:
+    from .certificates import check
+
+    paths = args.certificates
+    if not paths:
+        raise UserError("check: name at least one certificate file")
+    everything = True
+    for path in paths:
+        outcome = check(path, sample=args.sample, seed=args.seed)
+        mark = "[green]verified[/green]" if outcome.verified else "[red]NOT verified[/red]"
+        console.print(f"{mark}  {path}  {outcome.kind} {outcome.claim}: {outcome.reason}",
+                      highlight=False)
+        everything &= outcome.verified
+    return 0 if everything else 1
+
+
+def cmd_functions(args, console: Console) -> int:
+    from .claims.functions import QUANTIFIERS, TABLE
+    console.print("[bold]Functions of the claim language[/bold] (exact; sources beside each)\n")
+    for f in TABLE:
+        console.print(f"[bold cyan]{escape(f.signature())}[/bold cyan]")
+        console.print(f"    {escape(f.summary)}", highlight=False)
+        console.print(f"    [dim]source: {escape(f.source)}[/dim]", highlight=False)
+    console.print("\n[bold]Quantifiers[/bold] (take a generator)\n")
+    for name, meaning in QUANTIFIERS.items():
+        console.print(f"[bold cyan]{name}[/bold cyan](... for x in ... if ...)")
+        console.print(f"    {escape(meaning)}", highlight=False)
+    return 0
+
+
+def cmd_families(args, console: Console) -> int:
+    from .families import describe
+    for family in describe():
+        table = Table(title=f"{family['name']}: {family['description']}", title_justify="left")
+        table.add_column("parameter", no_wrap=True)
+        table.add_column("type")
+        table.add_column("default")
+        table.add_column("meaning")
+        for p in family["parameters"]:
+            table.add_row(p["name"], str(p.get("type", "")),
+                          "required" if p.get("required") else repr(p.get("default")),
+                          str(p.get("meaning", "")))
+        console.print(table)
+    return 0
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="verifier",
@@ -136,7 +261,46 @@ def build_parser() -> argparse.ArgumentParser:
                       help="catalog name or facet file (.txt/.json)")
     show.add_argument("--list", action="store_true", help="list the catalog names")
     show.set_defaults(handler=cmd_show)
+
+    run = commands.add_parser("run", help="test claims over their families")
+    run.add_argument("paths", nargs="+", metavar="PATH", help="claim files or folders")
+    run.add_argument("--store", default="reports/verifier.sqlite", help="SQLite store")
+    run.add_argument("--certificates", default="reports/certificates",
+                     help="folder for the certificates")
+    run.add_argument("--workers", type=_positive_int, default=None,
+                     help="worker processes (default: one per core)")
+    run.add_argument("--engine", choices=["processes", "inline"], default="processes")
+    run.add_argument("--resume", action="store_true",
+                     help="finish the interrupted run of the same claims in the store")
+    run.add_argument("--max-cases", type=_positive_int, default=None,
+                     help="at most this many cases per claim")
+    run.add_argument("--case-timeout", type=float, default=60.0,
+                     help="seconds allowed for one case (default 60)")
+    run.add_argument("--quiet", action="store_true", help="no progress bar")
+    run.set_defaults(handler=cmd_run)
+
+    check = commands.add_parser("check", help="re-verify certificates independently")
+    check.add_argument("certificates", nargs="*", metavar="CERT")
+    check.add_argument("--sample", type=_positive_int, default=None,
+                       help="re-evaluate a seeded sample of N cases of a pass certificate")
+    check.add_argument("--seed", type=int, default=0, help="seed of the sample")
+    check.set_defaults(handler=cmd_check)
+
+    functions = commands.add_parser("functions", help="list the claim language's functions")
+    functions.set_defaults(handler=cmd_functions)
+    families = commands.add_parser("families", help="list the families and their parameters")
+    families.set_defaults(handler=cmd_families)
     return parser
+
+
+def _positive_int(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a positive integer, got {text!r}") from None
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"expected a positive integer, got {value}")
+    return value
 
 
 def main(argv: list[str] | None = None) -> int:

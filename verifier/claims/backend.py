@@ -236,6 +236,12 @@ def _negative(M):
     return exact.signature(M.matrix)[1]
 
 
+def _range(n):
+    if not isinstance(n, int) or isinstance(n, bool) or not 0 <= n <= 10_000:
+        raise EvaluationError(f"range needs an integer from 0 to 10000, got {n}")
+    return tuple(range(n))
+
+
 def _with_keys(build):
     return lambda K: _keyed(K, build(K))
 
@@ -244,7 +250,7 @@ def _with_keys(build):
 
 IMPLEMENTATIONS = {
     "simplices": _simplices, "vertices": _vertices, "facets": _facets, "dim": _dim,
-    "size": _size, "f_vector": _f_vector, "omega": _omega, "euler": _euler, "wu": inv.wu,
+    "size": _size, "f_vector": _f_vector, "omega": _omega, "range": _range, "euler": _euler, "wu": inv.wu,
     "connection": _with_keys(inv.connection), "green": _with_keys(inv.green),
     "hodge": _with_keys(inv.hodge), "signless_hodge": _with_keys(inv.signless_hodge),
     "dirac": _with_keys(inv.dirac), "boundary_matrix": _boundary_matrix,

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import ast
 import difflib
+import warnings
 from dataclasses import dataclass, field
 
 from .errors import ExpressionError, Place
@@ -359,7 +360,9 @@ def parse(text: str, variables: dict[str, str], where: Place | None = None) -> N
         if "\x00" in text:
             raise ExpressionError("expression contains a NUL character", Place(None, 1, 1))
         try:  # parenthesised, so that a statement may span several lines
-            tree = ast.parse("(" + text + "\n)", mode="eval")
+            with warnings.catch_warnings():
+                warnings.simplefilter("ignore")   # Python's own warnings about odd literals
+                tree = ast.parse("(" + text + "\n)", mode="eval")
             _unshift(tree)
         except SyntaxError as error:
             line = error.lineno or 1

@@ -79,6 +79,8 @@ TABLE: list[Function] = [
              **CB),
     Function("f_vector", (P("K", C),), "list[number]", "invariants.f_vector", "definition", **CB),
     Function("omega", (P("x", S),), N, "invariants.omega", "definition", **CB),
+    Function("range", (P("n", N),), "list[number]", None, "definition",
+             "The integers 0, 1, ..., n-1 (for sums over dimensions).", **CB),
     Function("euler", (P("x", C, "set", "list"),), N, "invariants.euler",
              "L. Euler (1758); H. Poincare (1895)", **CB),
     Function("wu", (P("K", C),), N, "invariants.wu",

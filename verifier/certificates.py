@@ -1,0 +1,266 @@
+"""Certificates: writing them after a run, and checking them independently (SPEC §8).
+
+A certificate is canonical JSON (sorted keys) with a versioned schema and, under
+``"sha256"``, the SHA-256 of the canonical text of everything else.  Two kinds:
+
+* ``pass`` -- the claim (text and hash), its families with their seeds, the number of
+  cases, the outcome counts, a digest over every case's id and isomorphism hash, the
+  evidence level, engine and library versions, times;
+* ``counterexample`` -- the claim, the minimal complex(es) (facets), the exact value of
+  each side of the statement, the witness, the original failing case and family, and how
+  it was shrunk.
+
+:func:`check` re-verifies a certificate with the independent backend
+(:mod:`verifier.independent.claims`, a subprocess running sympy on Python integers that
+never loads python-flint): it recomputes the hash, re-evaluates counterexamples in full,
+re-plans the cases of a pass certificate, recomputes its digest and re-evaluates every
+case (or a seeded sample of ``sample`` cases).
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import os
+import platform
+import random
+import tempfile
+import time
+from dataclasses import dataclass
+from importlib import metadata
+from pathlib import Path
+
+__all__ = ["SCHEMA", "canonical", "seal", "write_certificates", "check", "CheckResult",
+           "CertificateError"]
+
+SCHEMA = "simplicial-verifier/certificate/1"
+
+
+class CertificateError(Exception):
+    """A certificate file cannot be read at all (says which and why)."""
+
+
+def canonical(data: dict) -> str:
+    return json.dumps(data, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
+
+
+def seal(body: dict) -> dict:
+    """The certificate: the body plus the SHA-256 of its canonical text."""
+    body = {k: v for k, v in body.items() if k != "sha256"}
+    return dict(body, sha256=hashlib.sha256(canonical(body).encode()).hexdigest())
+
+
+def _versions() -> dict:
+    versions = {"python": platform.python_version()}
+    for package in ("simplicial-verifier", "python-flint", "sympy", "networkx", "numpy"):
+        try:
+            versions[package] = metadata.version(package)
+        except metadata.PackageNotFoundError:
+            versions[package] = "not installed"
+    return versions
+
+
+def _claim_block(claim) -> dict:
+    data = claim.to_json()
+    data["sha256"] = hashlib.sha256(canonical(data).encode()).hexdigest()
+    data["file"] = Path(claim.file).name
+    return data
+
+
+def certificate_of(result, run) -> dict:
+    """The certificate body for one claim's result of a run."""
+    claim = result.claim
+    body = {
+        "schema": SCHEMA,
+        "claim": _claim_block(claim),
+        "cases": result.cases,
+        "outcomes": result.counts,
+        "digest": result.digest,
+        "evidence": claim.evidence,
+        "engine": {"name": run.engine, "workers": run.workers},
+        "versions": _versions(),
+        "run": run.run_id,
+        "created": time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime()),
+        "seconds": round(result.seconds, 3),
+        "recheck": "verifier check <this file>",
+    }
+    if result.counterexample is not None:
+        c = result.counterexample
+        body.update(kind="counterexample",
+                    complex={"facets": c["complexes"][claim.variables[0]]},
+                    complexes={v: {"facets": f} for v, f in c["complexes"].items()},
+                    values=c["sides"], witness=c["witness"],
+                    original={"case_id": c["case_id"], "family": c["family"],
+                              "complexes": {v: {"facets": f} for v, f in c["original"].items()},
+                              "values": c["original_sides"]},
+                    shrinking={"steps": c["steps"], "evaluations": c["evaluations"],
+                               "minimal": c["minimal"]})
+        body["evidence"] = c["evidence"]
+    else:
+        body["kind"] = "pass"
+    return seal(body)
+
+
+def _atomic_write(path: Path, text: str):
+    path.parent.mkdir(parents=True, exist_ok=True)
+    handle, temporary = tempfile.mkstemp(dir=path.parent, prefix=".tmp-", suffix=".json")
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8") as out:
+            out.write(text)
+        os.replace(temporary, path)
+    except BaseException:
+        Path(temporary).unlink(missing_ok=True)
+        raise
+
+
+def write_certificates(run, folder: str | Path) -> list[Path]:
+    """One certificate per claim with a settled verdict, written atomically as
+    ``<folder>/<claim>.json``; claims with unsettled cases (errors, limits) get none."""
+    written = []
+    for result in run.claims:
+        if result.verdict == "incomplete":
+            continue
+        path = Path(folder) / f"{result.claim.name}.json"
+        cert = certificate_of(result, run)
+        _atomic_write(path, json.dumps(cert, sort_keys=True, indent=1, ensure_ascii=False) + "\n")
+        written.append(path)
+    return written
+
+
+# ---------------------------------------------------------------------- check
+@dataclass
+class CheckResult:
+    path: str
+    verified: bool
+    reason: str
+    kind: str = ""
+    claim: str = ""
+    cases_checked: int = 0
+
+
+def _load(path: Path) -> dict:
+    try:
+        data = json.loads(path.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise CertificateError(f"{path}: no such file") from None
+    except (UnicodeDecodeError, json.JSONDecodeError) as error:
+        raise CertificateError(f"{path}: not a certificate (invalid JSON: {error})") from None
+    if not isinstance(data, dict):
+        raise CertificateError(f"{path}: not a certificate (expected a JSON object)")
+    return data
+
+
+def check(path: str | Path, sample: int | None = None, seed: int = 0,
+          timeout: float | None = None) -> CheckResult:
+    """Re-verify one certificate; never raises for a bad certificate, says why instead."""
+    path = Path(path)
+    try:
+        data = _load(path)
+    except CertificateError as error:
+        return CheckResult(str(path), False, str(error))
+    name = data.get("claim", {}).get("name", "?") if isinstance(data.get("claim"), dict) else "?"
+    result = CheckResult(str(path), False, "", str(data.get("kind", "")), name)
+    if data.get("schema") != SCHEMA:
+        result.reason = f"unknown schema {data.get('schema')!r} (expected {SCHEMA!r})"
+        return result
+    if seal(data)["sha256"] != data.get("sha256"):
+        result.reason = "tampered: the sha256 does not match the certificate's content"
+        return result
+    claim = data.get("claim")
+    required = ("statement", "over", "sha256")
+    if not isinstance(claim, dict) or any(k not in claim for k in required):
+        result.reason = "malformed: the claim block is incomplete"
+        return result
+    block = {k: v for k, v in claim.items() if k not in ("sha256", "file")}
+    if hashlib.sha256(canonical(block).encode()).hexdigest() != claim["sha256"]:
+        result.reason = "tampered: the claim's sha256 does not match its text"
+        return result
+    try:
+        if data.get("kind") == "counterexample":
+            return _check_counterexample(data, result, timeout)
+        if data.get("kind") == "pass":
+            return _check_pass(data, result, sample, seed, timeout)
+    except Exception as error:  # noqa: BLE001 - reported as the reason, never a traceback
+        result.reason = f"could not re-check: {type(error).__name__}: {error}"
+        return result
+    result.reason = f"unknown kind {data.get('kind')!r}"
+    return result
+
+
+def _variables(claim: dict) -> list[str]:
+    return list(dict.fromkeys(entry.get("bind", "K") for entry in claim["over"]))
+
+
+def _check_counterexample(data: dict, result: CheckResult, timeout) -> CheckResult:
+    from .independent.claims import recheck
+    claim = data["claim"]
+    complexes = data.get("complexes") or {_variables(claim)[0]: data.get("complex")}
+    task = {"statement": claim["statement"], "where": claim.get("where"),
+            "variables": {v: c["facets"] for v, c in complexes.items()}}
+    original = data.get("original", {}).get("complexes")
+    tasks = [task]
+    if original:
+        tasks.append(dict(task, variables={v: c["facets"] for v, c in original.items()}))
+    answers = recheck(tasks, timeout=timeout)
+    answer = answers[0]
+    result.cases_checked = len(tasks)
+    if answer.get("outside"):
+        result.reason = "mismatch: the counterexample is outside the claim's 'where' domain"
+    elif answer.get("holds"):
+        result.reason = "mismatch: the statement holds on the certified counterexample"
+    elif data.get("values") and answer.get("sides") != data["values"]:
+        result.reason = (f"mismatch: recomputed values {answer.get('sides')} differ from the "
+                         f"certified {data['values']}")
+    elif original and answers[1].get("holds"):
+        result.reason = "mismatch: the statement holds on the original failing case"
+    else:
+        result.verified = True
+        result.reason = "verified: the statement fails on the counterexample (independent backend)"
+    return result
+
+
+class _Plan:
+    """Just enough of a claim to re-plan its cases from a certificate."""
+
+    def __init__(self, claim: dict):
+        from .claims.loader import FamilyRef
+        from .families import make_family
+        self.name = claim.get("name", "?")
+        self.max_cases = claim.get("max_cases")
+        self.over = []
+        for entry in claim["over"]:
+            spec = {k: v for k, v in entry.items() if k != "bind"}
+            self.over.append(FamilyRef(spec, entry.get("bind", "K"), None, make_family(spec)))
+        self.variables = list(dict.fromkeys(ref.bind for ref in self.over))
+
+
+def _check_pass(data: dict, result: CheckResult, sample, seed, timeout) -> CheckResult:
+    from .independent.claims import recheck
+    from .run.cases import complexes_of, plan
+    from .run.runner import digest_of
+    claim = data["claim"]
+    planned = _Plan(claim)
+    ids = list(plan(planned, None))
+    envs = {cid: complexes_of(planned, cid) for cid in ids}
+    rows = [(cid, ",".join(envs[cid][v].content_hash for v in planned.variables)) for cid in ids]
+    if len(ids) != data.get("cases"):
+        result.reason = f"mismatch: {len(ids)} cases re-planned, certificate says {data.get('cases')}"
+        return result
+    if digest_of(rows) != data.get("digest"):
+        result.reason = "mismatch: the digest over the cases differs from the certified one"
+        return result
+    chosen = ids if not sample or sample >= len(ids) else sorted(
+        random.Random(seed).sample(ids, sample))
+    tasks = [{"statement": claim["statement"], "where": claim.get("where"),
+              "variables": {v: envs[cid][v].facet_labels() for v in planned.variables}}
+             for cid in chosen]
+    answers = recheck(tasks, timeout=timeout) if tasks else []
+    result.cases_checked = len(tasks)
+    for cid, answer in zip(chosen, answers):
+        if not (answer.get("holds") or answer.get("outside")):
+            result.reason = f"mismatch: the statement fails on case {cid} (independent backend)"
+            return result
+    scope = "every case" if len(chosen) == len(ids) else f"a sample of {len(chosen)} cases"
+    result.verified = True
+    result.reason = f"verified: digest recomputed, {scope} re-evaluated (independent backend)"
+    return result

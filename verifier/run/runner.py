@@ -1,0 +1,251 @@
+"""The runner: claims in, cases evaluated, store written, counterexamples shrunk.
+
+:func:`run` loads every claim first (nothing runs until all load), plans each claim's
+cases, skips those a resumed run already has, sends batches to an engine, writes each
+finished batch to the store (only this process writes), shrinks the first failing case
+of each claim to a minimal counterexample, and summarises.  The run id is a hash of the
+request (claim files' contents and options), so ``resume=True`` finds the interrupted
+run of the same request and completes it without losing or repeating a case.
+
+The digest of a claim is the SHA-256 of its sorted ``case_id complex_hash`` lines: the
+same whatever the engine, the number of workers or the interruptions.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from ..claims.evaluate import Limits
+from ..claims.loader import Claim, load_paths
+from .cases import (complexes_of, evaluate_case, family_label, limits_dict, plan, run_batch,
+                    split_id)
+from .engines import Batch, InlineEngine, ProcessEngine
+from .shrink import shrink
+from .store import Store
+
+__all__ = ["run", "RunOptions", "ClaimResult", "RunResult", "digest_of", "ENGINES"]
+
+ENGINES = {"processes": ProcessEngine, "inline": InlineEngine}
+
+
+@dataclass
+class RunOptions:
+    store: str = "reports/verifier.sqlite"
+    workers: int | None = None
+    engine: str = "processes"
+    resume: bool = False
+    max_cases: int | None = None
+    case_timeout: float = 60.0
+    batch_size: int | None = None
+    progress: bool = True
+    shrink_seconds: float = 300.0
+
+
+@dataclass
+class ClaimResult:
+    claim: Claim
+    counts: dict
+    cases: int
+    digest: str
+    seconds: float
+    meets_expectation: bool
+    verdict: str                       # what a reader is told: holds / fails / incomplete
+    counterexample: dict | None = None
+    problems: list = field(default_factory=list)
+
+
+@dataclass
+class RunResult:
+    run_id: str
+    store: str
+    claims: list[ClaimResult]
+    seconds: float
+    engine: str
+    workers: int
+    resumed: bool
+
+    @property
+    def ok(self) -> bool:
+        return all(c.meets_expectation for c in self.claims)
+
+
+def request_of(claims: list[Claim], options: RunOptions) -> dict:
+    """What identifies a run: the claims (as data, with their files' contents hashed) and
+    the options that change which cases are evaluated and how."""
+    files = sorted({c.file for c in claims})
+    contents = {f: hashlib.sha256(Path(f).read_bytes()).hexdigest() for f in files}
+    return {"files": files, "file_sha256": contents,
+            "claims": [c.to_json() for c in claims], "max_cases": options.max_cases,
+            "limits": limits_dict(Limits(seconds=options.case_timeout))}
+
+
+def digest_of(rows) -> str:
+    """SHA-256 over the sorted 'case_id complex_hash' lines of a claim's cases."""
+    h = hashlib.sha256()
+    for case_id, complex_hash in sorted(rows):
+        h.update(f"{case_id} {complex_hash}\n".encode())
+    return h.hexdigest()
+
+
+def _batches(files, claim: Claim, ids, size: int, limits: dict, budget: float):
+    chunk = []
+    for case_id in ids:
+        chunk.append(case_id)
+        if len(chunk) == size:
+            yield Batch((files, claim.name, chunk, limits), chunk, budget * len(chunk) + 10)
+            chunk = []
+    if chunk:
+        yield Batch((files, claim.name, chunk, limits), chunk, budget * len(chunk) + 10)
+
+
+def _complete(claim: Claim, record: dict) -> dict:
+    """Fill in what an engine could not (a case whose worker was killed or died)."""
+    record.setdefault("claim", claim.name)
+    record["family"] = record.get("family") or family_label(claim, record["case_id"])
+    if not record.get("complex_hash"):
+        try:
+            env = complexes_of(claim, record["case_id"])
+            record["complex_hash"] = ",".join(env[v].content_hash for v in claim.variables)
+        except Exception as error:  # noqa: BLE001 - recorded with the case
+            record["complex_hash"] = "unbuildable"
+            record["message"] = (record.get("message") or "") + f"; building: {error}"
+    record.pop("_engine_failure", None)
+    return record
+
+
+def run(paths, options: RunOptions | None = None, progress=None) -> RunResult:
+    """Run the claims in ``paths`` (files or folders); see the module docstring.
+
+    ``progress`` is an object with ``start(claim, total)``, ``advance(n)`` and ``done()``
+    (the command line passes a rich progress bar); None for silence.
+    """
+    options = options or RunOptions()
+    started = time.monotonic()
+    claims = load_paths(paths)
+    files = tuple(sorted({str(Path(c.file).resolve()) for c in claims}))
+    request = request_of(claims, options)
+    run_id = hashlib.sha256(json.dumps(request, sort_keys=True).encode()).hexdigest()[:16]
+    store = Store(options.store)
+    try:
+        if not options.resume:
+            run_id = f"{run_id}-{int(time.time() * 1000)}"
+        else:
+            previous = [r for r in store.unfinished_runs() if r.startswith(run_id)]
+            if previous:
+                run_id = previous[0]
+            else:
+                run_id = f"{run_id}-{int(time.time() * 1000)}"
+        resumed = store.open_run(run_id, request, options.engine)
+        engine_class = ENGINES[options.engine]
+        engine = engine_class(options.workers)
+        limits = limits_dict(Limits(seconds=options.case_timeout))
+        results = []
+        for claim in claims:
+            done = store.done_cases(run_id, claim.name)
+            todo = (cid for cid in plan(claim, options.max_cases) if cid not in done)
+            total = _planned_total(claim, options.max_cases)
+            size = options.batch_size or _batch_size(total, engine.workers)
+            if progress:
+                progress.start(claim, total, len(done))
+            for batch, records in engine.map(
+                    run_batch, _batches(files, claim, todo, size, limits, options.case_timeout)):
+                store.add_cases(run_id, [_complete(claim, r) for r in records])
+                if progress:
+                    progress.advance(len(records))
+            if progress:
+                progress.done()
+            results.append(_summarise(store, run_id, claim, options))
+        store.finish_run(run_id)
+        return RunResult(run_id, str(options.store), results, time.monotonic() - started,
+                         engine.name, engine.workers, resumed)
+    finally:
+        store.close()
+
+
+def _planned_total(claim: Claim, max_cases: int | None) -> int | None:
+    sizes = []
+    for variable in claim.variables:
+        total = 0
+        for ref in claim.over:
+            if ref.bind == variable:
+                size = ref.family.size()
+                if size is None:
+                    return None
+                total += size
+        sizes.append(total)
+    product = 1
+    for s in sizes:
+        product *= s
+    caps = [x for x in (claim.max_cases, max_cases) if x is not None]
+    return min([product] + caps)
+
+
+def _batch_size(total: int | None, workers: int) -> int:
+    if total is None:
+        return 16
+    return max(1, min(64, total // (workers * 8) or 1))
+
+
+def _summarise(store: Store, run_id: str, claim: Claim, options: RunOptions) -> ClaimResult:
+    counts = store.counts(run_id, claim.name)
+    rows = store.hashes(run_id, claim.name)
+    problems = store.problem_cases(run_id, claim.name)
+    failing = counts["fails"] > 0
+    unsettled = counts["error"] + counts["limit"] + counts["weak"]
+    if claim.expect == "holds":
+        meets = not failing and unsettled == 0
+        verdict = "fails" if failing else ("incomplete" if unsettled else "holds")
+    else:
+        meets = failing
+        verdict = "fails (as expected)" if failing else (
+            "incomplete" if unsettled else "holds (expected to fail)")
+    counterexample = None
+    if failing:
+        counterexample = store.counterexample(run_id, claim.name)
+        if counterexample is None:
+            counterexample = _shrink_first(store, run_id, claim, options)
+    return ClaimResult(claim, counts, len(rows), digest_of(rows),
+                       store.seconds(run_id, claim.name), meets, verdict, counterexample, problems)
+
+
+def _shrink_first(store: Store, run_id: str, claim: Claim, options: RunOptions) -> dict:
+    """Shrink the first failing case (in case-id order) and store the result."""
+    first = store.failing_cases(run_id, claim.name, limit=1)[0]
+    env = complexes_of(claim, first["case_id"])
+    limits = Limits(seconds=options.case_timeout)
+    shrunk = shrink(claim, env, limits, max_seconds=options.shrink_seconds)
+    final = evaluate_case_env(claim, shrunk.env, limits)
+    record = {
+        "case_id": first["case_id"],
+        "family": first["family"],
+        "original": {v: env[v].facet_labels() for v in claim.variables},
+        "original_sides": first["sides"],
+        "complexes": {v: shrunk.env[v].facet_labels() for v in claim.variables},
+        "sides": final["sides"],
+        "witness": final["witness"],
+        "evidence": final["evidence"],
+        "steps": shrunk.steps,
+        "evaluations": shrunk.evaluations,
+        "minimal": shrunk.complete,
+    }
+    store.save_counterexample(run_id, claim.name, first["case_id"], record)
+    return record
+
+
+def evaluate_case_env(claim: Claim, env: dict, limits: Limits) -> dict:
+    """Sides, witness and evidence of the statement on an environment (it must fail)."""
+    from ..claims.evaluate import Context, evaluate_claim
+    outcome = evaluate_claim(claim.statement, env, Context(limits))
+    return {"sides": outcome.sides, "witness": outcome.witness, "evidence": outcome.evidence}
+
+
+def recorded_case(claim: Claim, case_id: str, limits: Limits) -> dict:
+    """Re-evaluate one stored case (used by tests and by `verifier show` of a case)."""
+    return evaluate_case(claim, case_id, limits)
+
+
+__all__ += ["recorded_case", "split_id"]
