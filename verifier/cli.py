@@ -20,6 +20,7 @@ import time
 from fractions import Fraction
 from pathlib import Path
 
+from rich import box
 from rich.console import Console
 from rich.markup import escape
 from rich.table import Table
@@ -175,30 +176,38 @@ def cmd_run(args, console: Console) -> int:
             bar.stop()
     written = write_certificates(result, args.certificates)
     table = Table(title=f"run {result.run_id} ({result.engine}, {result.workers} workers"
-                        f"{', resumed' if result.resumed else ''})", title_justify="left")
-    for column in ("claim", "expect", "verdict", "cases", "holds", "fails", "outside",
-                   "other", "time (s)"):
-        table.add_column(column, justify="right" if column not in ("claim", "expect", "verdict")
-                         else "left")
+                        f"{', resumed' if result.resumed else ''})", title_justify="left",
+                  box=box.SIMPLE_HEAD, padding=(0, 1))
+    table.add_column("claim", no_wrap=True)
+    table.add_column("verdict", no_wrap=True)
+    table.add_column("ok", no_wrap=True)
+    for column in ("cases", "fails", "outside", "other", "s"):
+        table.add_column(column, justify="right", no_wrap=True)
     for r in result.claims:
         other = r.counts["error"] + r.counts["limit"] + r.counts["weak"]
-        style = "green" if r.meets_expectation else "red"
-        table.add_row(r.claim.name, r.claim.expect, f"[{style}]{r.verdict}[/{style}]",
-                      str(r.cases), str(r.counts["holds"]), str(r.counts["fails"]),
-                      str(r.counts["outside"]), str(other), f"{r.seconds:.1f}")
+        mark = "[green]yes[/green]" if r.meets_expectation else "[red]NO[/red]"
+        verdict = r.verdict.split(",")[0]
+        table.add_row(r.claim.name, verdict + ("*" if r.claim.expect == "fails" else ""), mark,
+                      str(r.cases), str(r.counts["fails"]), str(r.counts["outside"]),
+                      str(other), f"{r.seconds:.0f}")
     console.print(table)
+    if any(r.claim.expect == "fails" for r in result.claims):
+        console.print("[dim]* expected to fail: ok means a counterexample was found[/dim]")
     for r in result.claims:
         if r.counterexample:
             c = r.counterexample
-            facets = "; ".join(f"{v} = {f}" for v, f in c["complexes"].items())
+            facets = "; ".join(f"{v} = {escape(str(f))}" for v, f in c["complexes"].items())
             console.print(f"[bold]{r.claim.name}[/bold]: minimal counterexample {facets}"
-                          f" (from case {c['case_id']}, {len(c['steps'])} shrinking steps)",
-                          highlight=False)
-            if c["sides"]:
-                console.print(f"    sides: {c['sides'][0]}  vs  {c['sides'][1]}", highlight=False)
+                          f" (from case {escape(c['case_id'])}, {len(c['steps'])} shrinking "
+                          "steps)", highlight=False)
+            sides = c["sides"]
+            if sides and len(sides[0]) + len(sides[1]) < 160:
+                console.print(f"    {escape(sides[0])}  vs  {escape(sides[1])}", highlight=False)
+            elif c.get("witness"):
+                console.print(f"    differs at {escape(str(c['witness']))}", highlight=False)
         for p in r.problems:
-            console.print(f"[yellow]{r.claim.name}[/yellow]: case {p['case_id']}: "
-                          f"{p['outcome']}: {p['message']}", highlight=False)
+            console.print(f"[yellow]{r.claim.name}[/yellow]: case {escape(p['case_id'])}: "
+                          f"{p['outcome']}: {escape(str(p['message']))}", highlight=False)
     console.print(f"store: {result.store}; certificates: {len(written)} written to "
                   f"{args.certificates}; {result.seconds:.1f} s", highlight=False)
     return 0 if result.ok else 1

@@ -20,14 +20,16 @@ complexes iff they are isomorphic) computed by individualisation-refinement for
 complexes on at most ``CANONICAL_MAX_VERTICES`` vertices; ``content_hash`` is the
 SHA-256 of that form.  Beyond that bound ``content_hash`` is the hash of a strong
 isomorphism invariant (colour refinement of the vertex-simplex incidence): equal
-for isomorphic complexes, but two non-isomorphic complexes may in rare cases share
-it.  ``hash_is_canonical`` says which one a complex carries.
+for isomorphic complexes, but non-isomorphic complexes can share it -- typically when
+all vertices look alike to colour refinement (a 12-cycle and two disjoint 6-cycles
+do).  ``hash_is_canonical`` says which one a complex carries.
 """
 
 from __future__ import annotations
 
 import hashlib
 import json
+import re
 from collections.abc import Hashable, Iterable
 from itertools import chain, combinations
 from pathlib import Path
@@ -47,9 +49,24 @@ class ComplexError(ValueError):
 def _sort_labels(labels: Iterable[Hashable]) -> tuple:
     labels = set(labels)
     try:
-        return tuple(sorted(labels))
-    except TypeError:  # mixed label types: order by type name, then by text
-        return tuple(sorted(labels, key=lambda v: (type(v).__name__, repr(v))))
+        ordered = tuple(sorted(labels))
+        if all(a < b for a, b in zip(ordered, ordered[1:])):
+            return ordered
+    except TypeError:  # mixed label types
+        pass
+    # no total order (mixed types, or a partial order such as sets under inclusion, for
+    # which sorted() would depend on the input order): order by type name, then by text
+    return tuple(sorted(labels, key=lambda v: (type(v).__name__, _label_text(v))))
+
+
+def _label_text(v) -> str:
+    """A text for a label that does not depend on how the label was built (a set's
+    repr follows its iteration order, which can depend on insertion history)."""
+    if isinstance(v, (set, frozenset)):
+        return "{" + ", ".join(sorted(_label_text(w) for w in v)) + "}"
+    if isinstance(v, tuple):
+        return "(" + ", ".join(_label_text(w) for w in v) + ")"
+    return repr(v)
 
 
 class Complex:
@@ -76,6 +93,9 @@ class Complex:
         object.__setattr__(self, "_cache", {})
 
     def __setattr__(self, name, value):
+        raise AttributeError("Complex is immutable")
+
+    def __delattr__(self, name):
         raise AttributeError("Complex is immutable")
 
     # ------------------------------------------------------------------ builders
@@ -177,7 +197,7 @@ class Complex:
             body = line.split("#", 1)[0].replace(",", " ").strip()
             if not body:
                 continue
-            labels = [int(t) if t.lstrip("-").isdigit() else t for t in body.split()]
+            labels = [int(t) if re.fullmatch(r"-?[0-9]+", t) else t for t in body.split()]
             if len(set(labels)) != len(labels):
                 raise ComplexError(f"{path}:{lineno}: repeated vertex in {labels!r}")
             facets.append(labels)
@@ -346,7 +366,7 @@ class Complex:
         return self.n_vertices <= CANONICAL_MAX_VERTICES
 
     def canonical_form(self) -> tuple[tuple[int, ...], ...]:
-        """The lexicographically least facet list over all relabellings to 0..n-1.
+        """The least facet list over the relabellings to 0..n-1 that the search reaches.
 
         Two complexes have the same canonical form iff they are isomorphic.
         Computed by individualisation-refinement (a partition of the vertices refined by

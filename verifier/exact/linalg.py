@@ -126,6 +126,8 @@ def rank(M: Matrix) -> int:
 
 def rank_mod(M: Matrix, p: int) -> int:
     """Rank over the field Z/p (p prime) of an integer matrix."""
+    if not (isinstance(p, int) and p >= 2 and flint.fmpz(p).is_prime()):
+        raise ExactError(f"rank over Z/p needs a prime p, got {p!r}")
     if not M.is_integer():
         raise ExactError("rank over Z/p needs an integer matrix")
     if 0 in M.shape:
@@ -253,8 +255,9 @@ def verified_inverse_batch(A: np.ndarray, G: np.ndarray) -> np.ndarray:
     A and G are float64 arrays of shape (b, n, n) holding integers.  Entry k is True
     when A[k] @ G[k] == I holds exactly.  The products are computed in floating point
     only for pairs in which every partial sum is an integer of absolute value below
-    2^53 (max row sum of |A[k]| times max |G[k]|): IEEE double arithmetic represents and
-    adds such integers exactly, so the floating-point product is the exact product.
+    2^52 (max row sum of |A[k]| times max |G[k]|; 2^53 would do, a margin is kept): IEEE
+    double arithmetic represents and adds such integers exactly, so the floating-point
+    product is the exact product.
     Pairs outside that bound, or with non-integer entries, are reported False.
     """
     if A.shape[0] == 0:

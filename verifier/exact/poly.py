@@ -31,12 +31,19 @@ class Poly:
     __slots__ = ("coeffs",)
 
     def __init__(self, coeffs):
+        coeffs = list(coeffs)
+        for c in coeffs:
+            if isinstance(c, float) or not isinstance(c, Rational):
+                raise TypeError(f"polynomial coefficient {c!r} is not an exact rational number")
         coeffs = [_normal(Fraction(c) if not isinstance(c, (int, Fraction)) else c) for c in coeffs]
         while coeffs and coeffs[-1] == 0:
             coeffs.pop()
         object.__setattr__(self, "coeffs", tuple(coeffs))
 
     def __setattr__(self, name, value):
+        raise AttributeError("Poly is immutable")
+
+    def __delattr__(self, name):
         raise AttributeError("Poly is immutable")
 
     @property

@@ -201,8 +201,8 @@ def _summarise(store: Store, run_id: str, claim: Claim, options: RunOptions) -> 
         verdict = "fails" if failing else ("incomplete" if unsettled else "holds")
     else:
         meets = failing
-        verdict = "fails (as expected)" if failing else (
-            "incomplete" if unsettled else "holds (expected to fail)")
+        verdict = "fails, as expected" if failing else (
+            "incomplete" if unsettled else "holds, expected to fail")
     counterexample = None
     if failing:
         counterexample = store.counterexample(run_id, claim.name)
