@@ -15,6 +15,7 @@ file (text: one facet per line; ``.json``: a list of facets).  Exit codes: 0 suc
 from __future__ import annotations
 
 import argparse
+import json
 import sys
 import time
 from fractions import Fraction
@@ -229,6 +230,53 @@ def cmd_check(args, console: Console) -> int:
     return 0 if everything else 1
 
 
+def cmd_search(args, console: Console) -> int:
+    import hashlib
+    from types import SimpleNamespace
+
+    from .certificates import write_certificates
+    from .claims.errors import ClaimError
+    from .claims.loader import load_paths
+    from .run.runner import ClaimResult
+    from .run.search import search
+
+    try:
+        claims = load_paths(args.paths)
+    except ClaimError as error:
+        raise UserError(str(error)) from None
+    if args.claim:
+        claims = [c for c in claims if c.name == args.claim]
+        if not claims:
+            raise UserError(f"search: no claim named '{args.claim}' in {', '.join(args.paths)}")
+    if len(claims) != 1:
+        raise UserError("search: the files hold several claims; choose one with --claim NAME "
+                        f"({', '.join(c.name for c in claims)})")
+    claim = claims[0]
+    console.print(f"searching for a counterexample to [bold]{claim.name}[/bold] "
+                  f"({args.seconds:g} s, seed {args.seed}) ...", highlight=False)
+    found = search(claim, seconds=args.seconds, seed=args.seed, max_vertices=args.max_vertices,
+                   max_dim=args.max_dim)
+    if found is None:
+        console.print("no counterexample found (evidence, not proof)")
+        return 0 if claim.expect == "holds" else 1
+    facets = {v: K.facet_labels() for v, K in found.minimal.items()}
+    console.print(f"counterexample after {found.examples} examples "
+                  f"({found.seconds:.1f} s): {escape(str(facets))}", highlight=False)
+    record = {"case_id": f"search/seed-{args.seed}", "family": "search",
+              "original": {v: K.facet_labels() for v, K in found.original.items()},
+              "original_sides": [], "complexes": facets, "sides": found.sides,
+              "witness": found.witness, "evidence": found.evidence, "steps": found.steps,
+              "evaluations": found.examples, "minimal": True}
+    digest = hashlib.sha256(json.dumps(facets, sort_keys=True, default=str).encode()).hexdigest()
+    result = ClaimResult(claim, {"fails": 1}, found.examples, digest, found.seconds,
+                         claim.expect == "fails", "fails", record)
+    run = SimpleNamespace(claims=[result], engine="search", workers=1,
+                          run_id=f"search-seed-{args.seed}")
+    (path,) = write_certificates(run, args.certificates)
+    console.print(f"certificate: {path}", highlight=False)
+    return 0 if claim.expect == "fails" else 1
+
+
 def cmd_functions(args, console: Console) -> int:
     from .claims.functions import QUANTIFIERS, TABLE
     console.print("[bold]Functions of the claim language[/bold] (exact; sources beside each)\n")
@@ -294,6 +342,17 @@ def build_parser() -> argparse.ArgumentParser:
                        help="re-evaluate a seeded sample of N cases of a pass certificate")
     check.add_argument("--seed", type=int, default=0, help="seed of the sample")
     check.set_defaults(handler=cmd_check)
+
+    hunt = commands.add_parser("search", help="hunt a counterexample with random generation")
+    hunt.add_argument("paths", nargs="+", metavar="PATH", help="claim file(s)")
+    hunt.add_argument("--claim", help="the claim's name when a file holds several")
+    hunt.add_argument("--seconds", type=float, default=60.0, help="time budget (default 60)")
+    hunt.add_argument("--seed", type=int, default=0, help="seed of the random generation")
+    hunt.add_argument("--max-vertices", type=_positive_int, default=8)
+    hunt.add_argument("--max-dim", type=int, default=3)
+    hunt.add_argument("--certificates", default="reports/certificates",
+                      help="folder for the counterexample certificate")
+    hunt.set_defaults(handler=cmd_search)
 
     functions = commands.add_parser("functions", help="list the claim language's functions")
     functions.set_defaults(handler=cmd_functions)

@@ -48,9 +48,16 @@ class InlineEngine:
 
 
 def _worker_main(function, tasks, results):
-    """A worker: take (number, args) tasks until None, send (number, records | error)."""
+    """A worker: take (number, args) tasks until None, send (number, records | error).
+    It stops by itself when the process that started it is gone (killed client)."""
+    parent = os.getppid()
     while True:
-        task = tasks.get()
+        try:
+            task = tasks.get(timeout=1.0)
+        except queue.Empty:
+            if os.getppid() != parent:
+                return
+            continue
         if task is None:
             return
         number, args = task
