@@ -531,3 +531,16 @@ def test_specs_are_canonical_and_recreate_the_family():
         assert "bind" not in family.spec()
         assert list(again.case_ids()) == list(family.case_ids())
         assert [K for _, K in again] == [K for _, K in family]
+
+
+def test_atlas_ranges_match_the_atlas():
+    # the atlas orders graphs by number of vertices (Read & Wilson, An Atlas of Graphs,
+    # 1998); the planning ranges must pick exactly the graphs of each size
+    import networkx as nx
+    from verifier.families.enumerated import ATLAS_COUNTS
+    atlas = nx.graph_atlas_g()
+    start = 0
+    for n, count in enumerate(ATLAS_COUNTS):
+        assert {g.number_of_nodes() for g in atlas[start:start + count]} == {n}
+        start += count
+    assert start == len(atlas) == 1253

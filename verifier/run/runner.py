@@ -21,6 +21,7 @@ from pathlib import Path
 
 from ..claims.evaluate import Limits
 from ..claims.loader import Claim, load_paths
+from .cases import _claims as _claims_cache
 from .cases import (complexes_of, evaluate_case, family_label, limits_dict, plan, run_batch,
                     split_id)
 from .engines import Batch, InlineEngine, ProcessEngine
@@ -140,6 +141,7 @@ def run(paths, options: RunOptions | None = None, progress=None) -> RunResult:
             else:
                 run_id = f"{run_id}-{int(time.time() * 1000)}"
         resumed = store.open_run(run_id, request, options.engine)
+        _claims_cache(files)   # loaded once here; forked workers inherit it
         engine_class = ENGINES[options.engine]
         engine = engine_class(options.workers)
         limits = limits_dict(Limits(seconds=options.case_timeout))
