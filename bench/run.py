@@ -187,13 +187,17 @@ def bench_runner_atlas():
                      'source = "O. Knill, Linear Algebra Appl. 600 (2020)"\n'
                      '[[claim.over]]\nfamily = "graphs"\nmax_vertices = 7\nas = "flag"\n')
 
-    def timed(workers: int, tag: str):
-        options = RunOptions(store=str(folder / f"{tag}.sqlite"), workers=workers,
-                             engine="processes", progress=False)
-        start = time.perf_counter()
-        result = run([claim], options)
-        return time.perf_counter() - start, result
+    def timed(workers: int, tag: str, max_cases=None):
+        best, result = float("inf"), None
+        for attempt in range(3):
+            options = RunOptions(store=str(folder / f"{tag}-{attempt}.sqlite"), workers=workers,
+                                 engine="processes", progress=False, max_cases=max_cases)
+            start = time.perf_counter()
+            result = run([claim], options)
+            best = min(best, time.perf_counter() - start)
+        return best, result
 
+    timed(2, "warm-up", max_cases=10)      # imports and caches, outside the timings
     one_s, one = timed(1, "one")
     two_s, two = timed(2, "two")
     assert one.ok and two.ok and one.claims[0].digest == two.claims[0].digest

@@ -11,8 +11,8 @@ A certificate is canonical JSON (sorted keys) with a versioned schema and, under
   it was shrunk.
 
 :func:`check` re-verifies a certificate with the independent backend
-(:mod:`verifier.independent.claims`, a subprocess running sympy on Python integers that
-never loads python-flint): it recomputes the hash, re-evaluates counterexamples in full,
+(:mod:`verifier.independent.claims`: plain Python integers and fractions, in a
+subprocess that never loads python-flint): it recomputes the hash, re-evaluates counterexamples in full,
 re-plans the cases of a pass certificate, recomputes its digest and re-evaluates every
 case (or a seeded sample of ``sample`` cases).
 """
@@ -204,15 +204,19 @@ def _check_counterexample(data: dict, result: CheckResult, timeout) -> CheckResu
     answers = recheck(tasks, timeout=timeout)
     answer = answers[0]
     result.cases_checked = len(tasks)
-    if answer.get("outside"):
+    if answer.get("holds") is None and not answer.get("outside"):
+        result.reason = f"could not re-evaluate: {answer.get('message', 'unknown error')}"
+    elif answer.get("outside"):
         result.reason = "mismatch: the counterexample is outside the claim's 'where' domain"
     elif answer.get("holds"):
         result.reason = "mismatch: the statement holds on the certified counterexample"
     elif data.get("values") and answer.get("sides") != data["values"]:
         result.reason = (f"mismatch: recomputed values {answer.get('sides')} differ from the "
                          f"certified {data['values']}")
-    elif original and answers[1].get("holds"):
-        result.reason = "mismatch: the statement holds on the original failing case"
+    elif answer.get("outcome", "fails") != "fails":
+        result.reason = f"mismatch: the independent backend says {answer.get('outcome')}"
+    elif original and answers[1].get("outcome", "fails") != "fails":
+        result.reason = "mismatch: the statement does not fail on the original failing case"
     else:
         result.verified = True
         result.reason = "verified: the statement fails on the counterexample (independent backend)"
@@ -257,6 +261,10 @@ def _check_pass(data: dict, result: CheckResult, sample, seed, timeout) -> Check
     answers = recheck(tasks, timeout=timeout) if tasks else []
     result.cases_checked = len(tasks)
     for cid, answer in zip(chosen, answers):
+        if answer.get("holds") is None and not answer.get("outside"):
+            result.reason = (f"could not re-evaluate case {cid}: "
+                             f"{answer.get('message', 'unknown error')}")
+            return result
         if not (answer.get("holds") or answer.get("outside")):
             result.reason = f"mismatch: the statement fails on case {cid} (independent backend)"
             return result

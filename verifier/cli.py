@@ -224,8 +224,8 @@ def cmd_check(args, console: Console) -> int:
     for path in paths:
         outcome = check(path, sample=args.sample, seed=args.seed)
         mark = "[green]verified[/green]" if outcome.verified else "[red]NOT verified[/red]"
-        console.print(f"{mark}  {path}  {outcome.kind} {outcome.claim}: {outcome.reason}",
-                      highlight=False)
+        console.print(f"{mark}  {escape(str(path))}  {outcome.kind} {escape(outcome.claim)}: "
+                      f"{escape(outcome.reason)}", highlight=False, soft_wrap=True)
         everything &= outcome.verified
     return 0 if everything else 1
 

@@ -97,6 +97,9 @@ def _signature(M: Indexed) -> tuple:
 
 
 def _charpoly(M: Indexed):
+    if M.matrix.shape[0] != M.matrix.shape[1]:
+        raise EvaluationError(f"charpoly needs a square matrix, got {M.matrix.shape[0]}x"
+                              f"{M.matrix.shape[1]}")
     return CharPoly(M.matrix)
 
 

@@ -4,7 +4,7 @@ Each entry gives the name, the parameters with the types they accept, the result
 the library function whose docstring documents it, and the source.  ``verifier
 functions`` prints this table.  Implementations live in backends that provide every
 name: :mod:`verifier.claims.backend` (python-flint through :mod:`verifier.exact`) and
-:mod:`verifier.independent.claims` (plain integers, fractions and sympy, for re-checking
+:mod:`verifier.independent.claims` (plain integers and fractions, for re-checking
 certificates).  To add a function: write the invariant with its docstring, add one line
 to ``TABLE`` below and one adapter to each backend.
 

@@ -42,8 +42,8 @@ class MatrixError(ArithmeticError):
 
 def _normal(x):
     """An int for an integral Fraction, the value itself otherwise."""
-    if isinstance(x, Fraction) and x.denominator == 1:
-        return int(x.numerator)
+    if type(x) is Fraction and x.denominator == 1:
+        return x.numerator
     return x
 
 
@@ -206,7 +206,7 @@ class Matrix:
             for k, a in row:
                 for j, b in right[k]:
                     acc[j] += a * b
-            out.append(tuple(_normal(x) for x in acc))
+            out.append(tuple(x if type(x) is int else _normal(x) for x in acc))
         return Matrix((self.shape[0], width), tuple(out))
 
     def __pow__(self, k: int):
@@ -527,63 +527,76 @@ def _is_prime(n: int) -> bool:
     return True
 
 
-_PRIMES: list[int] = []
+_PRIMES: dict[int, list[int]] = {}
 
 
-def _primes(count: int) -> list[int]:
-    """The ``count`` largest primes below 2^31 (cached)."""
-    candidate = _PRIMES[-1] - 2 if _PRIMES else (1 << 31) - 1
-    while len(_PRIMES) < count:
+def _primes(bits: int, count: int) -> list[int]:
+    """The ``count`` largest primes below 2^bits (cached)."""
+    found = _PRIMES.setdefault(bits, [])
+    candidate = found[-1] - 2 if found else (1 << bits) - 1
+    while len(found) < count:
         if _is_prime(candidate):
-            _PRIMES.append(candidate)
+            found.append(candidate)
         candidate -= 2
-    return _PRIMES[:count]
+    return found[:count]
 
 
-def _charpoly_mod(B, p: int) -> list[int]:
-    """Coefficients (constant first) of det(xI - B) mod p, B an integer numpy array.
+def _prime_bits(n: int) -> int:
+    """Prime size for order n: with p < 2^b, a sum of n products of residues plus one
+    residue stays below n p^2 + p < 2^63, so int64 arithmetic never overflows."""
+    return min(25, (62 - n.bit_length()) // 2)
 
-    Similarity transforms bring B to upper Hessenberg form H over Z/p; then
-    det(xI - H) follows from the recurrence on its leading principal blocks.  Every
-    product of two residues is below p^2 < 2^62, so int64 arithmetic is exact.
+
+def _charpoly_mod(B, primes: list[int]):
+    """Coefficients (constant first) of det(xI - B) modulo each prime, as a
+    (primes, n + 1) int64 array; B is an n x n int64 array, primes below 2^_prime_bits(n).
+
+    For every prime at once: similarity transforms bring B to upper Hessenberg form H
+    over Z/p (pivot row swapped in where a pivot vanishes); then det(xI - H) follows
+    from the recurrence over its leading principal blocks.  Every intermediate value
+    is below 2^63 (see :func:`_prime_bits`), so the int64 arithmetic is exact.
     """
     import numpy as np
 
-    n = B.shape[0]
-    H = B % p
-    for k in range(n - 2):
-        column = H[k + 1:, k]
-        nonzero = np.flatnonzero(column)
-        if len(nonzero) == 0:
-            continue
-        r = k + 1 + int(nonzero[0])
-        if r != k + 1:                       # swap rows and columns r, k+1 (a similarity)
-            H[[k + 1, r], :] = H[[r, k + 1], :]
-            H[:, [k + 1, r]] = H[:, [r, k + 1]]
-        u = H[k + 2:, k] * pow(int(H[k + 1, k]), p - 2, p) % p
+    n, k = B.shape[0], len(primes)
+    p1 = np.array(primes, dtype=np.int64)[:, None]
+    p2 = p1[:, :, None]
+    H = B[None, :, :] % p2
+    for c in range(n - 2):
+        for q in np.flatnonzero(H[:, c + 1, c] == 0).tolist():
+            below = np.flatnonzero(H[q, c + 2:, c])
+            if len(below):                   # swap rows and columns r, c+1 (a similarity)
+                r = c + 2 + int(below[0])
+                H[q, [c + 1, r], :] = H[q, [r, c + 1], :]
+                H[q, :, [c + 1, r]] = H[q, :, [r, c + 1]]
+        pivots = H[:, c + 1, c].tolist()
+        inverses = np.array([pow(x, p - 2, p) if x else 0 for x, p in zip(pivots, primes)],
+                            dtype=np.int64)
+        u = H[:, c + 2:, c] * inverses[:, None] % p1           # multipliers, per prime
         if not u.any():
             continue
-        # rows i > k+1: row_i -= u_i row_(k+1); then column k+1 += sum_i u_i column_i
-        H[k + 2:, :] = (H[k + 2:, :] - np.outer(u, H[k + 1, :]) % p) % p
-        H[:, k + 1] = (H[:, k + 1] + (H[:, k + 2:] * u[None, :] % p).sum(axis=1)) % p
-    # P[m] = det(xI - H[:m, :m]) (coefficients, constant first), P[0] = 1:
-    # P[m] = (x - h_mm) P[m-1] - sum_{i<m} h_im (h_(i+1)i ... h_m(m-1)) P[i-1]   (1-based)
-    P = np.zeros((n + 1, n + 1), dtype=np.int64)
-    P[0, 0] = 1
-    weights = np.zeros(n, dtype=np.int64)   # weights[i] = prod of subdiagonal entries
+        # rows i > c+1: row_i -= u_i row_(c+1); then column c+1 += sum_i u_i column_i
+        H[:, c + 2:, c:] = (H[:, c + 2:, c:] - u[:, :, None] * H[:, c + 1, None, c:]) % p2
+        H[:, :, c + 1] = (H[:, :, c + 1] + np.matmul(H[:, :, c + 2:], u[:, :, None])[:, :, 0]) % p1
+    # P[m] = det(xI - H[:m, :m]), constant term first; with 0-based j = m - 1:
+    # P[m] = (x - h_jj) P[m-1] - sum_{i<j} h_ij (h_(i+1)i ... h_j(j-1)) P[i]
+    P = np.zeros((k, n + 1, n + 1), dtype=np.int64)
+    P[:, 0, 0] = 1
+    weights = np.zeros((k, n), dtype=np.int64)  # products of subdiagonal entries
     for m in range(1, n + 1):
-        j = m - 1                                     # 0-based index of row/column m
-        shifted = np.zeros(n + 1, dtype=np.int64)
-        shifted[1:] = P[m - 1, :-1]
-        value = (shifted - H[j, j] * P[m - 1] % p) % p
+        j = m - 1
+        previous = P[:, m - 1, :m]
+        value = np.zeros((k, m + 1), dtype=np.int64)
+        value[:, 1:] = previous
+        value[:, :m] = (value[:, :m] - H[:, j, j, None] * previous) % p1
         if j > 0:
-            sub = int(H[j, j - 1])
-            weights[:j - 1] = weights[:j - 1] * sub % p
-            weights[j - 1] = sub
-            t = H[:j, j] * weights[:j] % p            # t_i for i = 0..j-1 (0-based)
-            value = (value - (P[:j] * t[:, None] % p).sum(axis=0) % p) % p
-        P[m] = value
-    return [int(c) for c in P[n]]
+            sub = H[:, j, j - 1, None]
+            weights[:, :j - 1] = weights[:, :j - 1] * sub % p1
+            weights[:, j - 1] = sub[:, 0]
+            t = H[:, :j, j] * weights[:, :j] % p1
+            value[:, :m] = (value[:, :m] - np.matmul(t[:, None, :], P[:, :j, :m])[:, 0, :]) % p1
+        P[:, m, :m + 1] = value
+    return P[:, n, :]
 
 
 def charpoly(A: Matrix) -> "Poly":
@@ -597,25 +610,66 @@ def charpoly(A: Matrix) -> "Poly":
     >>> str(charpoly(Matrix.from_rows([[Fraction(1, 2), 0], [0, 3]])))
     'x^2 - 7/2*x + 3/2'
 
-    Notes: with d the common denominator, B = dA is integral and
+    Notes: the indices are first split into the connected components of the nonzero
+    pattern (a permutation similarity makes A block diagonal, and the characteristic
+    polynomial is the product over the blocks).  For each block, with d the common
+    denominator, B = dA is integral and
     det(xI - A) = d^-n det(dx I - B).  The coefficient of x^(n-k) in det(xI - B) is
-    +- a sum of principal k x k minors, each at most the product of the k largest
-    Euclidean row norms (Hadamard), so all coefficients are bounded by
-    prod_i (1 + |row_i|) =: C.  The characteristic polynomial is computed modulo
-    primes below 2^31 (Hessenberg reduction and recurrence) until their product
-    exceeds 2C, then lifted by the Chinese remainder theorem to the symmetric range,
-    which recovers every coefficient exactly.  O(n^3) per prime; the trace is checked
-    against the coefficient of x^(n-1).
+    +- a sum of principal k x k minors, each at most the product of the Euclidean
+    norms of its rows (Hadamard), so every coefficient is at most
+    C = prod_i (1 + |row_i|).  The characteristic polynomial is computed modulo primes
+    (Hessenberg reduction and recurrence, numpy int64, all primes in one batch) until
+    their product exceeds 2C, then lifted by the Chinese remainder theorem to the
+    symmetric range, which recovers every coefficient exactly.  O(n^3) per prime; the
+    result is also checked against the trace.
     References: H. Cohen, A Course in Computational Algebraic Number Theory, Springer
     1993, sec. 2.2.4 (Hessenberg method); J. Hadamard, Bull. Sci. Math. 17 (1893)
     (determinant bound).
     """
-    import numpy as np
-
     _square(A, "charpoly")
     n = A.shape[0]
     if n == 0:
         return Poly([1])
+    blocks = _blocks(A)
+    if len(blocks) > 1:      # a permutation similarity makes A block diagonal
+        result = Poly([1])
+        for block in blocks:
+            rows = A._rows
+            result = result * _charpoly(Matrix((len(block), len(block)), tuple(
+                tuple(rows[i][j] for j in block) for i in block)))
+        return result
+    return _charpoly(A)
+
+
+def _blocks(A: Matrix) -> list[list[int]]:
+    """The index sets of the connected components of the graph with an edge i - j
+    wherever A[i, j] or A[j, i] is nonzero, each sorted, in order of their least index."""
+    n = A.shape[0]
+    parent = list(range(n))
+
+    def root(i):
+        while parent[i] != i:
+            parent[i] = parent[parent[i]]
+            i = parent[i]
+        return i
+
+    for i, row in enumerate(A._nonzeros()):
+        for j, _ in row:
+            a, b = root(i), root(j)
+            if a != b:
+                parent[max(a, b)] = min(a, b)
+    groups: dict[int, list[int]] = {}
+    for i in range(n):
+        groups.setdefault(root(i), []).append(i)
+    return [groups[r] for r in sorted(groups)]
+
+
+def _charpoly(A: Matrix) -> "Poly":
+    """det(xI - A) for a nonempty square matrix by the multimodular method (see
+    :func:`charpoly`)."""
+    import numpy as np
+
+    n = A.shape[0]
     d = 1
     for row in A._rows:
         for x in row:
@@ -624,26 +678,33 @@ def charpoly(A: Matrix) -> "Poly":
     B = [[int(x * d) for x in row] for row in A._rows]
     bound = 1
     for row in B:
-        bound *= 2 + isqrt(sum(x * x for x in row))   # 1 + ceil(|row|_2)
-    if max(abs(x) for row in B for x in row) < (1 << 62):
-        array = np.array(B, dtype=np.int64)
-    else:
-        array = None
-    modulus, residues = 1, [0] * (n + 1)
-    count = 0
-    while modulus <= 2 * bound:
-        count += 1
-        p = _primes(count)[-1]
-        if array is not None:
-            local = _charpoly_mod(array, p)
+        bound *= 2 + isqrt(sum(x * x for x in row))   # >= 1 + |row|_2
+    bits = _prime_bits(n)
+    count = 1 + (2 * bound).bit_length() // (bits - 1)  # primes above 2^(bits-1) each
+    primes = _primes(bits, count)
+    residues = []
+    for start in range(0, count, 16):                  # 16 primes per batch bounds memory
+        chunk = primes[start:start + 16]
+        if max(abs(x) for row in B for x in row) < (1 << 62):
+            array = np.array(B, dtype=np.int64)
+            local = _charpoly_mod(array, chunk)
         else:
-            local = _charpoly_mod(np.array([[x % p for x in row] for row in B], dtype=np.int64), p)
-        # Chinese remainder step: combine residues mod `modulus` with residues mod p
+            local = None
+        for q, p in enumerate(chunk):
+            if local is None:
+                reduced = np.array([[x % p for x in row] for row in B], dtype=np.int64)
+                residues.append((p, _charpoly_mod(reduced, [p])[0].tolist()))
+            else:
+                residues.append((p, local[q].tolist()))
+    modulus, values = 1, [0] * (n + 1)
+    for p, local in residues:                          # Chinese remainder theorem
         shift = pow(modulus, p - 2, p)
-        residues = [r + modulus * ((c - r) * shift % p) for r, c in zip(residues, local)]
+        values = [r + modulus * ((c - r) * shift % p) for r, c in zip(values, local)]
         modulus *= p
+    if modulus <= 2 * bound:
+        raise MatrixError("too few primes for the coefficient bound")  # our bug
     half = modulus // 2
-    coeffs = [r - modulus if r > half else r for r in residues]
+    coeffs = [r - modulus if r > half else r for r in values]
     # back from B = dA: det(xI - A) = d^-n det(d x I - B), coefficient k gets d^(k - n)
     result = Poly([Fraction(c) * Fraction(d) ** (k - n) for k, c in enumerate(coeffs)])
     if result.coeffs[-1] != 1 or -result.coeffs[-2] != A.trace():
@@ -672,6 +733,10 @@ class Poly:
     __slots__ = ("coeffs",)
 
     def __init__(self, coeffs):
+        coeffs = list(coeffs)
+        for c in coeffs:
+            if not isinstance(c, Rational):
+                raise TypeError(f"polynomial coefficient {c!r} is not an exact rational number")
         coeffs = [_normal(c if isinstance(c, (int, Fraction)) else Fraction(c)) for c in coeffs]
         while coeffs and coeffs[-1] == 0:
             coeffs.pop()

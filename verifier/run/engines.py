@@ -49,7 +49,11 @@ class InlineEngine:
 
 def _worker_main(function, tasks, results):
     """A worker: take (number, args) tasks until None, send (number, records | error).
-    It stops by itself when the process that started it is gone (killed client)."""
+    It stops by itself when the process that started it is gone (killed client).
+    Its linear algebra runs single-threaded: the engine already keeps every core busy,
+    and BLAS threads inherited through fork would only compete with the other workers."""
+    from threadpoolctl import threadpool_limits
+    threadpool_limits(1)
     parent = os.getppid()
     while True:
         try:
