@@ -293,17 +293,20 @@ def cmd_functions(args, console: Console) -> int:
 
 def cmd_families(args, console: Console) -> int:
     from .families import describe
+    console.print("[bold]Families[/bold] (use in " + escape("[[claim.over]]") +
+                  " tables: family = \"name\", then the parameters)\n")
     for family in describe():
-        table = Table(title=f"{family['name']}: {family['description']}", title_justify="left")
-        table.add_column("parameter", no_wrap=True)
-        table.add_column("type")
-        table.add_column("default")
-        table.add_column("meaning")
+        console.print(f"[bold cyan]{escape(family['name'])}[/bold cyan]: "
+                      f"{escape(family['description'])}", highlight=False)
+        if family.get("reference"):
+            console.print(f"  [dim]source: {escape(family['reference'])}[/dim]", highlight=False)
         for p in family["parameters"]:
-            table.add_row(p["name"], str(p.get("type", "")),
-                          "required" if p.get("required") else repr(p.get("default")),
-                          str(p.get("meaning", "")))
-        console.print(table)
+            need = "required" if p.get("required") else f"default {p.get('default')!r}"
+            valid = f"; {p['valid']}" if p.get("valid") else ""
+            console.print(f"  [bold]{escape(p['name'])}[/bold] ({escape(need)}): "
+                          f"{escape(str(p.get('type', '')))}{escape(valid)}", highlight=False)
+            console.print(f"      {escape(str(p.get('meaning', '')))}", highlight=False)
+        console.print()
     return 0
 
 
