@@ -9,9 +9,12 @@ import sys
 from verifier.cli import main
 
 
+ROOT = __import__("pathlib").Path(__file__).resolve().parent.parent
+
+
 def run(*args):
     return subprocess.run([sys.executable, "-m", "verifier", *args], capture_output=True,
-                          text=True, timeout=120)
+                          text=True, timeout=120, cwd=ROOT)
 
 
 def test_show_prints_exact_invariants_of_the_torus(capsys):
@@ -77,3 +80,44 @@ def test_list_names_every_catalog_entry(capsys):
     out = capsys.readouterr().out
     for name in catalog.names():
         assert name in out
+
+
+def test_functions_lists_every_function_with_its_source(capsys):
+    from verifier.claims.functions import TABLE
+    assert main(["functions"]) == 0
+    out = capsys.readouterr().out
+    for f in TABLE:
+        assert f.signature() in " ".join(out.split()) or f.name + "(" in out
+    assert "O. Knill, Linear Algebra Appl. 600 (2020) 96-129" in " ".join(out.split())
+
+
+def test_families_lists_every_family_and_parameter(capsys):
+    from verifier.families import describe
+    assert main(["families"]) == 0
+    out = " ".join(capsys.readouterr().out.split())
+    for family in describe():
+        assert family["name"] + ":" in out
+        for p in family["parameters"]:
+            assert p["name"] in out
+    assert "[lo, hi]" in out     # markup-like text is shown as written
+
+
+def test_search_finds_the_triangle_and_writes_a_certificate(tmp_path):
+    # the hydrogen identity fails in dimension 2 (Knill, arXiv:1803.01464, states it for
+    # graphs); the search must find a counterexample that shrinks to one triangle
+    result = run("search", "claims/hydrogen-2d-fails.toml", "--seconds", "30", "--seed", "3",
+                 "--certificates", str(tmp_path))
+    assert result.returncode == 0, result.stdout + result.stderr
+    certificate = json.loads((tmp_path / "hydrogen-identity-2d.json").read_text())
+    facets = certificate["complex"]["facets"]
+    assert len(facets) == 1 and len(facets[0]) == 3
+    checked = run("check", str(tmp_path / "hydrogen-identity-2d.json"))
+    assert checked.returncode == 0, checked.stdout
+
+
+def test_search_reports_nothing_found_for_a_theorem(tmp_path):
+    result = run("search", "claims/energy.toml", "--seconds", "3", "--certificates",
+                 str(tmp_path))
+    assert result.returncode == 0
+    assert "no counterexample found (evidence, not proof)" in result.stdout
+    assert not list(tmp_path.iterdir())

@@ -173,3 +173,39 @@ def test_random_text_gives_only_our_errors(text):
         evaluate(node, {"K": EDGE}, Context(Limits(seconds=2, max_steps=20_000)))
     except ClaimError:
         pass
+
+
+# --------------------------------------------------------- random claim files (property)
+TOML_PIECES = st.sampled_from([
+    "[[claim]]\n", "[[claim.over]]\n", "[claim]\n", 'name = "x"\n', 'name = "Bad Name"\n',
+    'statement = "euler(K) == 1"\n', 'statement = "gren(K)"\n', "statement = 3\n",
+    'statement = """\nall(\n"""\n', 'where = "dim(K) >= 0"\n', 'expect = "fails"\n',
+    'expect = "maybe"\n', 'evidence = "float"\n', "max_cases = -1\n", 'family = "catalog"\n',
+    'family = "random-flag"\n', "vertices = [3, 2]\n", "count = 1e3\n", "edge_probability = 2\n",
+    'names = ["torus-7", "nothing"]\n', 'bind = "A"\n', 'bind = "1x"\n', "= 1\n", '"\n',
+    "of = { family = \"catalog\" }\n", "times = 9\n", 'family = "refine"\n', "\x00", "#\n",
+])
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.lists(TOML_PIECES, max_size=14).map("".join))
+def test_random_claim_files_give_only_our_errors(text):
+    # whatever the file says, loading it raises nothing but ClaimError subclasses, and a
+    # file that loads evaluates with only ClaimError subclasses too
+    import tempfile
+    from pathlib import Path
+
+    from verifier.claims.loader import load_file
+    with tempfile.TemporaryDirectory() as folder:
+        path = Path(folder) / "random.toml"
+        path.write_text(text)
+        try:
+            claims = load_file(path)
+        except ClaimError:
+            return
+        for claim in claims:
+            try:
+                evaluate(claim.statement, {v: EDGE for v in claim.variables},
+                         Context(Limits(seconds=2, max_steps=20_000)))
+            except ClaimError:
+                pass
