@@ -273,3 +273,34 @@ def test_check_command_exit_codes(certified, tmp_path):
     junk.write_text("{not json")
     result = cli("check", str(junk))
     assert result.returncode == 1 and "invalid JSON" in result.stdout
+
+
+# ------------------------------------------------------------------- time limits
+def test_a_slow_case_is_recorded_as_limit_not_dropped(tmp_path):
+    # a library call that cannot be interrupted from inside (the exact charpoly of a matrix
+    # of order 9,072) is stopped by the engine's watchdog; the case is recorded as 'limit'
+    # with the limit named, the other case still holds, and the claim is incomplete
+    path = tmp_path / "slow.toml"
+    path.write_text('[[claim]]\nname = "slow"\nsource = "demo"\nstatement = "size(K) < 10 or '
+                    'charpoly(connection(refine(K, 3))) == charpoly(connection(K))"\n'
+                    '[[claim.over]]\nfamily = "catalog"\n'
+                    'names = ["simplex-boundary-1", "torus-7"]\n')
+    start = time.monotonic()
+    result = run([path], options(tmp_path, engine="processes", workers=2, case_timeout=1.0))
+    assert time.monotonic() - start < 60
+    (claim,) = result.claims
+    assert claim.counts["holds"] == 1 and claim.counts["limit"] == 1
+    assert claim.verdict == "incomplete" and not claim.meets_expectation
+    assert claim.problems[0]["message"].startswith("seconds:")
+    assert claim.cases == 2                     # nothing dropped: both cases are in the store
+
+
+def test_cooperative_limit_inside_the_evaluator(tmp_path):
+    path = tmp_path / "loop.toml"
+    path.write_text('[[claim]]\nname = "loop"\nsource = "demo"\n'
+                    'statement = "count(1 for x in simplices(K) for y in simplices(K) for z in '
+                    'simplices(K)) >= 0"\n[[claim.over]]\nfamily = "refine"\n'
+                    'of = { family = "catalog", names = ["torus-7"] }\ntimes = 2\n')
+    result = run([path], options(tmp_path, case_timeout=0.5))
+    assert result.claims[0].counts["limit"] == 1
+    assert result.claims[0].problems[0]["message"].startswith("seconds: evaluation took longer")

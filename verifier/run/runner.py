@@ -92,15 +92,21 @@ def digest_of(rows) -> str:
     return h.hexdigest()
 
 
-def _batches(files, claim: Claim, ids, size: int, limits: dict, budget: float):
+def _batches(files, claim: Claim, ids, size: int, limits: dict, case_seconds: float):
+    """Batches of case ids, each with the time budget the engine's watchdog enforces: the
+    per-case limit for every case, plus a margin for the evaluator's own (cooperative)
+    deadline to fire first."""
+    def budget(n: int) -> float:
+        return case_seconds * n * 1.5 + 3.0
+
     chunk = []
     for case_id in ids:
         chunk.append(case_id)
         if len(chunk) == size:
-            yield Batch((files, claim.name, chunk, limits), chunk, budget * len(chunk) + 10)
+            yield Batch((files, claim.name, chunk, limits), chunk, budget(len(chunk)))
             chunk = []
     if chunk:
-        yield Batch((files, claim.name, chunk, limits), chunk, budget * len(chunk) + 10)
+        yield Batch((files, claim.name, chunk, limits), chunk, budget(len(chunk)))
 
 
 def _complete(claim: Claim, record: dict) -> dict:
