@@ -10,8 +10,6 @@ from __future__ import annotations
 from fractions import Fraction
 from math import prod
 
-import pytest
-
 from verifier import invariants as inv
 from verifier import operations as ops
 from verifier.complex import Complex

@@ -16,7 +16,6 @@ import pytest
 
 from verifier.certificates import check, seal, write_certificates
 from verifier.claims.evaluate import Limits
-from verifier.claims.loader import load_file
 from verifier.complex import Complex
 from verifier.run.cases import holds_on
 from verifier.run.runner import RunOptions, run

@@ -17,20 +17,15 @@ Importing this package loads neither sympy nor python-flint.
 
 from __future__ import annotations
 
-import json
-import os
-import subprocess
-import sys
 from dataclasses import dataclass, field
 from fractions import Fraction
-from pathlib import Path
 
 from .compute import QUANTITIES, IndependentInputError, validate_task
+from .process import call
 
 __all__ = ["recompute", "run", "IndependentRun", "IndependentCheckError",
            "IndependentInputError", "QUANTITIES"]
 
-_PACKAGE_ROOT = Path(__file__).resolve().parent.parent.parent
 
 
 class IndependentCheckError(RuntimeError):
@@ -95,34 +90,9 @@ def run(tasks, *, timeout: float | None = None) -> IndependentRun:
     tasks = list(tasks)
     for i, task in enumerate(tasks):
         validate_task(task, f"task {i}")
-    env = dict(os.environ)
-    env["SYMPY_GROUND_TYPES"] = "python"
-    env["PYTHONPATH"] = os.pathsep.join(
-        [str(_PACKAGE_ROOT)] + [p for p in env.get("PYTHONPATH", "").split(os.pathsep) if p])
-    try:
-        completed = subprocess.run(
-            [sys.executable, "-m", "verifier.independent.worker"],
-            input=json.dumps({"tasks": tasks}), capture_output=True, text=True,
-            env=env, cwd=str(_PACKAGE_ROOT), timeout=timeout)
-    except subprocess.TimeoutExpired:
-        raise IndependentCheckError(
-            f"independent worker exceeded {timeout} s on a batch of {len(tasks)} task(s)") from None
-    try:
-        answer = json.loads(completed.stdout)
-    except json.JSONDecodeError:
-        tail = (completed.stderr or completed.stdout or "").strip().splitlines()[-5:]
-        raise IndependentCheckError(
-            f"independent worker exited with status {completed.returncode} without an "
-            f"answer: {' | '.join(tail) or 'no output'}") from None
-    if "error" in answer:
-        raise IndependentCheckError(f"independent worker: {answer['error']}")
+    answer = call("verifier.independent.worker", {"tasks": tasks}, timeout,
+                  IndependentCheckError, "independent worker")
     report = answer.get("report", {})
-    if report.get("flint_in_sys_modules"):
-        raise IndependentCheckError("independent worker saw python-flint; its results "
-                                    "are not independent")
-    if report.get("sympy_loaded") and report.get("sympy_ground_types") != "python":
-        raise IndependentCheckError(f"independent worker ran sympy with ground types "
-                                    f"{report.get('sympy_ground_types')!r}, not 'python'")
     results = [{name: _decode(name, value) for name, value in result.items()}
                for result in answer["results"]]
     if len(results) != len(tasks):

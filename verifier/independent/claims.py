@@ -44,13 +44,8 @@ True
 
 from __future__ import annotations
 
-import json
-import os
-import subprocess
-import sys
 from fractions import Fraction
 from itertools import combinations, permutations
-from pathlib import Path
 
 from ..claims.errors import ClaimError, EvaluationError, LimitExceeded
 from ..claims.evaluate import Context, Limits, evaluate, evaluate_claim
@@ -58,7 +53,7 @@ from ..claims.expression import parse
 from ..claims.values import Indexed
 from ..complex import Complex, ComplexError
 from . import matrix as mx
-from .matrix import Matrix, Poly
+from .matrix import Matrix
 
 __all__ = [
     "IMPLEMENTATIONS", "NotDecided", "evaluate_claim_independently", "recheck",
@@ -70,7 +65,6 @@ __all__ = [
     "is_manifold", "is_manifold_with_boundary",
 ]
 
-_PACKAGE_ROOT = Path(__file__).resolve().parent.parent.parent
 
 
 class NotDecided(EvaluationError):
@@ -1244,33 +1238,10 @@ def recheck_run(tasks, timeout: float | None = None) -> RecheckRun:
     Reference: sympy documentation, "Ground types" (why a separate process is needed).
     """
     tasks = validate_tasks(tasks)
-    env = dict(os.environ)
-    env["SYMPY_GROUND_TYPES"] = "python"
-    env["PYTHONPATH"] = os.pathsep.join(
-        [str(_PACKAGE_ROOT)] + [p for p in env.get("PYTHONPATH", "").split(os.pathsep) if p])
-    try:
-        completed = subprocess.run(
-            [sys.executable, "-m", "verifier.independent.recheck"],
-            input=json.dumps({"tasks": tasks}), capture_output=True, text=True, env=env,
-            cwd=str(_PACKAGE_ROOT), timeout=timeout)
-    except subprocess.TimeoutExpired:
-        raise RecheckError(f"re-check process exceeded {timeout} s on a batch of "
-                           f"{len(tasks)} task(s)") from None
-    try:
-        answer = json.loads(completed.stdout)
-    except json.JSONDecodeError:
-        tail = (completed.stderr or completed.stdout or "").strip().splitlines()[-5:]
-        raise RecheckError(f"re-check process exited with status {completed.returncode} "
-                           f"without an answer: {' | '.join(tail) or 'no output'}") from None
-    if "error" in answer:
-        raise RecheckError(f"re-check process: {answer['error']}")
+    from .process import call
+    answer = call("verifier.independent.recheck", {"tasks": tasks}, timeout, RecheckError,
+                  "the re-check process")
     report = answer.get("report", {})
-    if report.get("flint_in_sys_modules") or report.get("flint_imports_refused"):
-        raise RecheckError("the re-check process saw python-flint; its results are not "
-                           "independent")
-    if report.get("sympy_loaded") and report.get("sympy_ground_types") != "python":
-        raise RecheckError(f"the re-check process ran sympy with ground types "
-                           f"{report.get('sympy_ground_types')!r}, not 'python'")
     results = answer.get("results", [])
     if len(results) != len(tasks):
         raise RecheckError(f"the re-check process answered {len(results)} of {len(tasks)} tasks")
