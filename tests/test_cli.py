@@ -116,8 +116,7 @@ def test_search_finds_the_triangle_and_writes_a_certificate(tmp_path):
 
 
 def test_search_reports_nothing_found_for_a_theorem(tmp_path):
-    result = run("search", "claims/energy.toml", "--seconds", "3", "--certificates",
-                 str(tmp_path))
+    result = run("search", "energy", "--seconds", "3", "--certificates", str(tmp_path))
     assert result.returncode == 0
     assert "no counterexample found (evidence, not proof)" in result.stdout
     assert not list(tmp_path.iterdir())

@@ -303,3 +303,9 @@ def test_cooperative_limit_inside_the_evaluator(tmp_path):
     result = run([path], options(tmp_path, case_timeout=0.5))
     assert result.claims[0].counts["limit"] == 1
     assert result.claims[0].problems[0]["message"].startswith("seconds: evaluation took longer")
+
+
+def test_check_can_sample_a_large_pass_certificate(certified):
+    outcome = check(certified["refinement-invariance"], sample=5, seed=1)
+    assert outcome.verified and outcome.cases_checked == 5
+    assert "a sample of 5 cases" in outcome.reason

@@ -181,16 +181,14 @@ def cmd_run(args, console: Console) -> int:
                   box=box.SIMPLE_HEAD, padding=(0, 1))
     table.add_column("claim", no_wrap=True)
     table.add_column("verdict", no_wrap=True)
-    table.add_column("ok", no_wrap=True)
     for column in ("cases", "fails", "outside", "other", "s"):
         table.add_column(column, justify="right", no_wrap=True)
     for r in result.claims:
         other = r.counts["error"] + r.counts["limit"] + r.counts["weak"]
-        mark = "[green]yes[/green]" if r.meets_expectation else "[red]NO[/red]"
-        verdict = r.verdict.split(",")[0]
-        table.add_row(r.claim.name, verdict + ("*" if r.claim.expect == "fails" else ""), mark,
-                      str(r.cases), str(r.counts["fails"]), str(r.counts["outside"]),
-                      str(other), f"{r.seconds:.0f}")
+        mark = "[green]ok[/green]" if r.meets_expectation else "[red]NOT OK[/red]"
+        verdict = r.verdict.split(",")[0] + ("*" if r.claim.expect == "fails" else "")
+        table.add_row(r.claim.name, f"{verdict} {mark}", str(r.cases), str(r.counts["fails"]),
+                      str(r.counts["outside"]), str(other), f"{r.seconds:.0f}")
     console.print(table)
     if any(r.claim.expect == "fails" for r in result.claims):
         console.print("[dim]* expected to fail: ok means a counterexample was found[/dim]")
@@ -240,14 +238,18 @@ def cmd_search(args, console: Console) -> int:
     from .run.runner import ClaimResult
     from .run.search import search
 
+    paths = list(args.paths)
+    if len(paths) == 1 and not Path(paths[0]).exists() and Path("claims").is_dir():
+        args.claim = args.claim or paths[0]       # a claim's name: look in ./claims
+        paths = ["claims"]
     try:
-        claims = load_paths(args.paths)
+        claims = load_paths(paths)
     except ClaimError as error:
         raise UserError(str(error)) from None
     if args.claim:
         claims = [c for c in claims if c.name == args.claim]
         if not claims:
-            raise UserError(f"search: no claim named '{args.claim}' in {', '.join(args.paths)}")
+            raise UserError(f"search: no claim named '{args.claim}' in {', '.join(paths)}")
     if len(claims) != 1:
         raise UserError("search: the files hold several claims; choose one with --claim NAME "
                         f"({', '.join(c.name for c in claims)})")
@@ -347,7 +349,8 @@ def build_parser() -> argparse.ArgumentParser:
     check.set_defaults(handler=cmd_check)
 
     hunt = commands.add_parser("search", help="hunt a counterexample with random generation")
-    hunt.add_argument("paths", nargs="+", metavar="PATH", help="claim file(s)")
+    hunt.add_argument("paths", nargs="+", metavar="PATH_OR_NAME",
+                      help="claim file(s), or the name of a claim in ./claims")
     hunt.add_argument("--claim", help="the claim's name when a file holds several")
     hunt.add_argument("--seconds", type=float, default=60.0, help="time budget (default 60)")
     hunt.add_argument("--seed", type=int, default=0, help="seed of the random generation")

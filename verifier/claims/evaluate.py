@@ -392,7 +392,8 @@ def ctx_witness(ctx: Context, inner: dict, outer: dict):
 class Outcome:
     """The result of evaluating a claim's statement on one case."""
     holds: bool
-    sides: list[str]                  # exact texts of the two sides of a top comparison
+    sides: list[str]                  # exact texts of the two sides of a top comparison,
+                                      # or of the statement's value when it is no comparison
     witness: dict | None              # the binding that decided a quantifier, as texts
     evidence: str
     error_bound: Fraction | None
@@ -412,7 +413,9 @@ def evaluate_claim(statement: Node, env: dict, ctx: Context | None = None) -> Ou
         if not holds and isinstance(left, Indexed) and isinstance(right, Indexed):
             ctx.witness = _first_difference(left, right)
     else:
-        holds = bool(evaluate(statement, env, ctx))
+        value = evaluate(statement, env, ctx)
+        holds = bool(value)
+        sides = [describe_value(value)]
     witness = None
     if ctx.witness:
         witness = {k: str(list(v)) if isinstance(v, tuple) else describe_value(v)
