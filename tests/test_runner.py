@@ -153,7 +153,9 @@ BAD_FILES = {
     "bad-parameter.toml": ('[[claim]]\nname = "x"\nstatement = "euler(K) == 1"\n'
                            '[[claim.over]]\nfamily = "random-flag"\nvertices = 8\n'
                            'edge_probability = 1.5\ncount = 3\n',
-                           "bad-parameter.toml:5:10: "),
+                           "bad-parameter.toml:7:20: family 'random-flag': parameter "
+                           "'edge_probability' must be a number, 0 <= edge_probability <= 1; "
+                           "got 1.5"),
 }
 
 

@@ -606,9 +606,23 @@ def _components(K: Complex) -> int:
     return nx.number_connected_components(K.graph()) if K.n_vertices else 0
 
 
-def _collapses_to_point(simplices: set[tuple[int, ...]]) -> bool:
-    """Greedy elementary collapses; True if they reach a single vertex (a witness that
-    the complex is collapsible; False means only that this greedy order got stuck)."""
+def _collapses_to_point(simplices: set[tuple[int, ...]], attempts: int = 8) -> bool:
+    """Greedy elementary collapses in up to ``attempts`` fixed orders (the natural one,
+    then seeded shuffles); True as soon as one reaches a single vertex -- a witness that
+    the complex is collapsible.  False means only that every order tried got stuck."""
+    import random
+    for attempt in range(attempts):
+        order = sorted(simplices, key=lambda s: (-len(s), s))
+        if attempt:
+            random.Random(attempt).shuffle(order)
+            order.sort(key=len, reverse=True)
+        if _greedy_collapse(simplices, order):
+            return True
+    return False
+
+
+def _greedy_collapse(simplices: set[tuple[int, ...]], order: list) -> bool:
+    """One greedy sequence of elementary collapses, free faces taken in ``order``."""
     alive = set(simplices)
     cofaces: dict = {s: set() for s in alive}
     for s in alive:
@@ -618,7 +632,7 @@ def _collapses_to_point(simplices: set[tuple[int, ...]]) -> bool:
     changed = True
     while changed and len(alive) > 1:
         changed = False
-        for s in sorted(alive, key=len, reverse=True):
+        for s in order:
             if s not in alive or len(cofaces[s]) != 1:
                 continue
             (t,) = cofaces[s]

@@ -237,7 +237,11 @@ def _claim(i: int, table: dict, positions: _Positions, path: Path, make_family) 
             raise error.at(family_place) from None
         except (ValueError, KeyError, TypeError) as error:
             message = str(error.args[0]) if error.args else str(error)
-            raise ClaimFileError(message, family_place) from None
+            key = getattr(error, "key", None)    # the parameter at fault, when known
+            place = family_place
+            if key and isinstance(key[0], str) and key[0] in entry:
+                place = positions.place(i, key[0], over=j)
+            raise ClaimFileError(message, place) from None
         refs.append(FamilyRef(spec, bind, family_place, family))
     variables = list(dict.fromkeys(ref.bind for ref in refs))
     types = {v: "complex" for v in variables}

@@ -30,15 +30,24 @@ SEPARATOR = " & "
 
 
 def join_id(parts: list[tuple[int, str]]) -> str:
-    """The case id of a combination of family cases: 'ref|id' joined by ' & '."""
-    return SEPARATOR.join(f"{ref}|{cid}" for ref, cid in parts)
+    """The case id of a combination of family cases: 'ref|id' joined by ' & ', where
+    ref is the position of the family's [[claim.over]] entry.  An '&' inside a family's
+    id is doubled, so the separator (a lone '&' between spaces) cannot occur inside one.
+
+    >>> join_id([(0, "catalog/torus-7"), (1, "file/a & b.txt")])
+    '0|catalog/torus-7 & 1|file/a && b.txt'
+    >>> split_id(_) == [(0, "catalog/torus-7"), (1, "file/a & b.txt")]
+    True
+    """
+    return SEPARATOR.join(f"{ref}|{cid.replace('&', '&&')}" for ref, cid in parts)
 
 
 def split_id(case_id: str) -> list[tuple[int, str]]:
+    """The (ref, family case id) parts of a case id (inverse of :func:`join_id`)."""
     parts = []
     for piece in case_id.split(SEPARATOR):
         ref, cid = piece.split("|", 1)
-        parts.append((int(ref), cid))
+        parts.append((int(ref), cid.replace("&&", "&")))
     return parts
 
 

@@ -28,6 +28,15 @@ class _TimeUp(Exception):
     pass
 
 
+def _only_time_up(error: BaseException) -> bool:
+    """True for our time-out, also when Hypothesis reports it inside an exception group."""
+    if isinstance(error, _TimeUp):
+        return True
+    if isinstance(error, BaseExceptionGroup):
+        return error.subgroup(lambda e: not isinstance(e, (_TimeUp, BaseExceptionGroup))) is None
+    return False
+
+
 @dataclass
 class Found:
     original: dict          # variable -> Complex as Hypothesis found (and shrank) it
@@ -72,7 +81,11 @@ def search(claim: Claim, seconds: float = 60.0, seed: int = 0, max_vertices: int
                       suppress_health_check=list(HealthCheck))
     try:
         original = find(strategy, fails, settings=config, random=random.Random(seed))
-    except (_TimeUp, NoSuchExample):
+    except NoSuchExample:
+        return None
+    except BaseException as error:       # noqa: BLE001 - only our own time-out is expected
+        if not _only_time_up(error):
+            raise
         if smallest is None:
             return None
         original = smallest     # time ran out while Hypothesis was still shrinking
