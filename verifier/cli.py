@@ -165,6 +165,7 @@ def cmd_run(args, console: Console) -> int:
     from .run.runner import RunOptions, run
 
     options = RunOptions(store=args.store, workers=args.workers, engine=args.engine,
+                         scheduler=args.scheduler,
                          resume=args.resume, max_cases=args.max_cases,
                          case_timeout=args.case_timeout, progress=not args.quiet)
     bar = None if args.quiet else _Bar(console)
@@ -331,7 +332,11 @@ def build_parser() -> argparse.ArgumentParser:
                      help="folder for the certificates")
     run.add_argument("--workers", type=_positive_int, default=None,
                      help="worker processes (default: one per core)")
-    run.add_argument("--engine", choices=["processes", "inline"], default="processes")
+    run.add_argument("--engine", choices=["processes", "dask", "inline"], default="processes",
+                     help="local worker processes (default), a Dask cluster, or in-process")
+    run.add_argument("--scheduler", metavar="ADDRESS", default=None,
+                     help="with --engine dask: a running scheduler (tcp://HOST:PORT); "
+                          "without it a local cluster is started")
     run.add_argument("--resume", action="store_true",
                      help="finish the interrupted run of the same claims in the store")
     run.add_argument("--max-cases", type=_positive_int, default=None,

@@ -6,6 +6,10 @@ An engine is a small class with one method, :meth:`map`, that applies the batch 
 (planning, the store, progress), so a new engine is one new class.
 
 * :class:`InlineEngine` evaluates in the calling process (debugging, tiny runs).
+* :class:`DaskEngine` sends batches to a ``dask.distributed`` cluster: a local one it
+  starts itself, or a running scheduler.  Dask moves the batches of a worker that dies to
+  another worker; a watchdog like the one below cancels a batch that overruns its
+  budget, restarts that worker, and retries the batch case by case.
 * :class:`ProcessEngine` keeps one worker process per core.  A watchdog gives every batch
   a time budget (cases x per-case limit, plus slack): a worker that overruns it or dies is
   killed and replaced; its batch is retried case by case, and a single case that overruns
@@ -21,7 +25,7 @@ import time
 import traceback
 from collections import deque
 
-__all__ = ["InlineEngine", "ProcessEngine", "Batch"]
+__all__ = ["InlineEngine", "ProcessEngine", "DaskEngine", "Batch"]
 
 
 class Batch:
@@ -161,3 +165,92 @@ def _failed(batch: Batch, outcome: str, message: str) -> list[dict]:
     """Records for cases the engine could not evaluate (the runner fills in the rest)."""
     return [{"case_id": cid, "outcome": outcome, "message": message, "complex_hash": "",
              "seconds": 0.0, "_engine_failure": True} for cid in batch.case_ids]
+
+
+class DaskEngine:
+    """Batches on a ``dask.distributed`` cluster (see the module docstring).
+
+    ``scheduler=None`` starts a ``LocalCluster`` with ``workers`` single-threaded worker
+    processes (one per core by default); otherwise it connects to ``scheduler``
+    (``tcp://HOST:PORT``).  At most two batches per worker are in flight, so the
+    watchdog's clock starts close to when a batch starts.
+    """
+
+    name = "dask"
+
+    def __init__(self, workers: int | None = None, scheduler: str | None = None,
+                 slack: float = 10.0):
+        from dask.distributed import Client, LocalCluster
+
+        self.cluster = None
+        if scheduler:
+            self.client = Client(scheduler, timeout="30s")
+        else:
+            self.cluster = LocalCluster(n_workers=max(1, workers or os.cpu_count() or 1),
+                                        threads_per_worker=1, processes=True,
+                                        dashboard_address=None, silence_logs=40)
+            self.client = Client(self.cluster)
+        self.workers = max(1, len(self.client.scheduler_info()["workers"]))
+        self.slack = slack
+
+    def map(self, function, batches):
+        from dask.distributed import wait
+
+        pending = deque(batches)
+        running: dict = {}                        # future -> (batch, submitted at)
+        limit = 2 * self.workers
+        while pending or running:
+            while pending and len(running) < limit:
+                batch = pending.popleft()
+                future = self.client.submit(_call_threadsafe, function, batch.args, pure=False)
+                running[future] = (batch, time.monotonic())
+            try:
+                done, _ = wait(list(running), timeout=0.5, return_when="FIRST_COMPLETED")
+            except TimeoutError:         # nothing finished in this half second
+                done = []
+            for future in done:
+                batch, _started = running.pop(future)
+                try:
+                    records = future.result()
+                except Exception as error:        # noqa: BLE001 - recorded with the cases
+                    records = _failed(batch, "error", f"worker raised: {error}")
+                yield batch, records
+            now = time.monotonic()
+            for future, (batch, started) in list(running.items()):
+                if now - started <= batch.budget + self.slack:
+                    continue
+                running.pop(future)
+                self._stop(future)
+                if len(batch.case_ids) > 1:
+                    for single in _split(batch):
+                        pending.appendleft(single)
+                else:
+                    yield batch, _failed(batch, "limit",
+                                         "seconds: the case ran past its time limit")
+
+    def _stop(self, future):
+        """Cancel an overrunning batch and restart the worker stuck in it."""
+        processing = self.client.processing()
+        busy = [address for address, keys in processing.items() if future.key in keys]
+        self.client.cancel(future)
+        if busy:
+            try:
+                self.client.restart_workers(busy)
+            except Exception:  # noqa: BLE001 - a worker that cannot restart is retired
+                self.client.retire_workers(busy)
+
+    def plan(self, function, *args):
+        """Run a planning function (e.g. an exhaustive enumeration) on a worker."""
+        return self.client.submit(function, *args, pure=False).result()
+
+    def close(self):
+        self.client.close()
+        if self.cluster is not None:
+            self.cluster.close()
+
+
+def _call_threadsafe(function, args):
+    """Worker-side call with single-threaded linear algebra (as in the process engine)."""
+    from threadpoolctl import threadpool_limits
+    with threadpool_limits(1):
+        return function(*args)

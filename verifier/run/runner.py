@@ -24,13 +24,13 @@ from ..claims.loader import Claim, load_paths
 from .cases import _claims as _claims_cache
 from .cases import (complexes_of, evaluate_case, family_label, limits_dict, plan, run_batch,
                     split_id)
-from .engines import Batch, InlineEngine, ProcessEngine
+from .engines import Batch, DaskEngine, InlineEngine, ProcessEngine
 from .shrink import shrink
 from .store import Store
 
 __all__ = ["run", "RunOptions", "ClaimResult", "RunResult", "digest_of", "ENGINES"]
 
-ENGINES = {"processes": ProcessEngine, "inline": InlineEngine}
+ENGINES = {"processes": ProcessEngine, "inline": InlineEngine, "dask": DaskEngine}
 
 
 @dataclass
@@ -38,6 +38,7 @@ class RunOptions:
     store: str = "reports/verifier.sqlite"
     workers: int | None = None
     engine: str = "processes"
+    scheduler: str | None = None          # dask: address of a running scheduler
     resume: bool = False
     max_cases: int | None = None
     case_timeout: float = 60.0
@@ -149,24 +150,13 @@ def run(paths, options: RunOptions | None = None, progress=None) -> RunResult:
         resumed = store.open_run(run_id, request, options.engine)
         _claims_cache(files)   # loaded once here; forked workers inherit it
         engine_class = ENGINES[options.engine]
-        engine = engine_class(options.workers)
-        limits = limits_dict(Limits(seconds=options.case_timeout))
-        results = []
-        for claim in claims:
-            done = store.done_cases(run_id, claim.name)
-            todo = (cid for cid in plan(claim, options.max_cases) if cid not in done)
-            total = _planned_total(claim, options.max_cases)
-            size = options.batch_size or _batch_size(total, engine.workers)
-            if progress:
-                progress.start(claim, total, len(done))
-            for batch, records in engine.map(
-                    run_batch, _batches(files, claim, todo, size, limits, options.case_timeout)):
-                store.add_cases(run_id, [_complete(claim, r) for r in records])
-                if progress:
-                    progress.advance(len(records))
-            if progress:
-                progress.done()
-            results.append(_summarise(store, run_id, claim, options))
+        engine = (engine_class(options.workers, options.scheduler) if options.engine == "dask"
+                  else engine_class(options.workers))
+        try:
+            results = [_run_claim(claim, files, run_id, store, engine, options, progress)
+                       for claim in claims]
+        finally:
+            engine.close()
         store.finish_run(run_id)
         return RunResult(run_id, str(options.store), results, time.monotonic() - started,
                          engine.name, engine.workers, resumed)
@@ -174,22 +164,31 @@ def run(paths, options: RunOptions | None = None, progress=None) -> RunResult:
         store.close()
 
 
-def _planned_total(claim: Claim, max_cases: int | None) -> int | None:
-    sizes = []
-    for variable in claim.variables:
-        total = 0
-        for ref in claim.over:
-            if ref.bind == variable:
-                size = ref.family.size()
-                if size is None:
-                    return None
-                total += size
-        sizes.append(total)
-    product = 1
-    for s in sizes:
-        product *= s
-    caps = [x for x in (claim.max_cases, max_cases) if x is not None]
-    return min([product] + caps)
+def plan_ids(files: tuple[str, ...], claim_name: str, max_cases: int | None) -> list[str]:
+    """Every case id of a claim, in order.  Engines that can run it remotely do
+    (enumerating an exhaustive family is work for the cluster, not the client)."""
+    return list(plan(_claims_cache(tuple(files))[claim_name], max_cases))
+
+
+def _run_claim(claim: Claim, files, run_id: str, store: Store, engine, options: RunOptions,
+               progress) -> ClaimResult:
+    limits = limits_dict(Limits(seconds=options.case_timeout))
+    planner = getattr(engine, "plan", None)
+    ids = (planner(plan_ids, files, claim.name, options.max_cases) if planner
+           else plan_ids(files, claim.name, options.max_cases))
+    done = store.done_cases(run_id, claim.name)
+    todo = [cid for cid in ids if cid not in done]
+    size = options.batch_size or _batch_size(len(ids), engine.workers)
+    if progress:
+        progress.start(claim, len(ids), len(ids) - len(todo))
+    for _batch, records in engine.map(
+            run_batch, _batches(files, claim, todo, size, limits, options.case_timeout)):
+        store.add_cases(run_id, [_complete(claim, r) for r in records])
+        if progress:
+            progress.advance(len(records))
+    if progress:
+        progress.done()
+    return _summarise(store, run_id, claim, options)
 
 
 def _batch_size(total: int | None, workers: int) -> int:
