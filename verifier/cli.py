@@ -280,6 +280,44 @@ def cmd_search(args, console: Console) -> int:
     return 0 if claim.expect == "fails" else 1
 
 
+def cmd_summary(args, console: Console) -> int:
+    from .run.store import Store
+
+    if not Path(args.store).exists():
+        raise UserError(f"{args.store}: no such store (run `verifier run` first)")
+    start = time.perf_counter()
+    store = Store(args.store)
+    try:
+        run_id = args.run or store.latest_run()
+        if run_id is None:
+            raise UserError(f"{args.store}: the store holds no run")
+        request = store.run_request(run_id)
+        if not request:
+            raise UserError(f"{args.store}: no run {run_id!r}")
+        table_data = store.summary(run_id)
+        finished = dict((r[0], r[2]) for r in store.runs()).get(run_id)
+    finally:
+        store.close()
+    table = Table(title=f"run {run_id}{'' if finished else ' (unfinished: --resume finishes it)'}",
+                  title_justify="left", box=box.SIMPLE_HEAD, padding=(0, 1))
+    table.add_column("claim", no_wrap=True)
+    for column in ("cases", "holds", "fails", "outside", "other", "s"):
+        table.add_column(column, justify="right", no_wrap=True)
+    for claim in request.get("claims", []):
+        entry = table_data.get(claim["name"], {"counts": {}, "cases": 0, "seconds": 0.0})
+        counts = entry["counts"]
+        other = sum(counts.get(o, 0) for o in ("error", "limit", "weak"))
+        name = claim["name"] + ("*" if claim.get("expect") == "fails" else "")
+        table.add_row(name, str(entry["cases"]),
+                      str(counts.get("holds", 0)), str(counts.get("fails", 0)),
+                      str(counts.get("outside", 0)), str(other), f"{entry['seconds']:.0f}")
+    console.print(table)
+    if any(c.get("expect") == "fails" for c in request.get("claims", [])):
+        console.print("[dim]* expected to fail[/dim]")
+    console.print(f"[dim]{escape(args.store)}, read in {time.perf_counter() - start:.2f} s[/dim]")
+    return 0
+
+
 def cmd_functions(args, console: Console) -> int:
     from .claims.functions import QUANTIFIERS, TABLE
     console.print("[bold]Functions of the claim language[/bold] (exact; sources beside each)\n")
@@ -364,6 +402,11 @@ def build_parser() -> argparse.ArgumentParser:
     hunt.add_argument("--certificates", default="reports/certificates",
                       help="folder for the counterexample certificate")
     hunt.set_defaults(handler=cmd_search)
+
+    summary = commands.add_parser("summary", help="summarise a run from the store")
+    summary.add_argument("--store", default="reports/verifier.sqlite", help="SQLite store")
+    summary.add_argument("--run", default=None, help="run id (default: the latest run)")
+    summary.set_defaults(handler=cmd_summary)
 
     functions = commands.add_parser("functions", help="list the claim language's functions")
     functions.set_defaults(handler=cmd_functions)

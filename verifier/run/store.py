@@ -142,6 +142,24 @@ class Store:
             (run_id, claim, limit))
         return [{"case_id": c, "outcome": o, "message": m} for c, o, m in rows]
 
+    def summary(self, run_id: str) -> dict[str, dict]:
+        """Per claim: outcome counts, number of cases and summed case time (one query)."""
+        table: dict[str, dict] = {}
+        rows = self.db.execute("SELECT claim, outcome, COUNT(*), SUM(seconds) FROM cases "
+                               "WHERE run_id = ? GROUP BY claim, outcome", (run_id,))
+        for claim, outcome, count, seconds in rows:
+            entry = table.setdefault(claim, {"counts": {o: 0 for o in OUTCOMES}, "cases": 0,
+                                             "seconds": 0.0})
+            entry["counts"][outcome] = count
+            entry["cases"] += count
+            entry["seconds"] += seconds or 0.0
+        return table
+
+    def runs(self) -> list[tuple]:
+        """(run_id, started, finished, engine) of every run, newest first."""
+        return list(self.db.execute("SELECT run_id, started, finished, engine FROM runs "
+                                    "ORDER BY started DESC"))
+
     def save_counterexample(self, run_id: str, claim: str, case_id: str, record: dict):
         self.db.execute("INSERT OR REPLACE INTO counterexamples VALUES (?,?,?,?)",
                         (run_id, claim, case_id, json.dumps(record, sort_keys=True)))
