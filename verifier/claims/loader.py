@@ -19,7 +19,7 @@ from pathlib import Path
 from .errors import ClaimError, ClaimFileError, ExpressionError, Place
 from .expression import Node, parse
 
-__all__ = ["Claim", "FamilyRef", "load_file", "load_paths", "CLAIM_KEYS", "EVIDENCE_LEVELS"]
+__all__ = ["Claim", "FamilyRef", "load_file", "load_text", "load_paths", "CLAIM_KEYS", "EVIDENCE_LEVELS"]
 
 CLAIM_KEYS = ("name", "title", "statement", "where", "expect", "evidence", "source", "over",
               "max_cases", "notes")
@@ -155,7 +155,13 @@ def load_file(path: str | Path, make_family=None) -> list[Claim]:
     :func:`verifier.families.make_family`); its errors are located at the table.
     """
     path = Path(path)
-    text = _read(path)
+    return load_text(_read(path), path, make_family)
+
+
+def load_text(text: str, path: str | Path, make_family=None) -> list[Claim]:
+    """Load the claims of a claim file's text; ``path`` names it in errors and is the base
+    of relative paths in its families (workers of a cluster load claims this way)."""
+    path = Path(path)
     file = str(path)
     try:
         data = tomllib.loads(text)

@@ -7,8 +7,8 @@ its complexes from the id alone (:func:`evaluate_case`), and a resumed run can t
 cases are done.
 
 The batch function :func:`run_batch` is what engines ship to workers: it takes plain
-data (the claim files, the claim name, the case ids, the limits) and returns plain
-records, so it runs the same in a local process or on a cluster.
+data (the claim files' texts, the claim name, the case ids, the limits) and returns plain
+records, so it runs the same in a local process or on a cluster's machines.
 """
 
 from __future__ import annotations
@@ -20,7 +20,7 @@ from functools import lru_cache
 
 from ..claims.errors import ClaimError, LimitExceeded
 from ..claims.evaluate import Context, Limits, evaluate, evaluate_claim
-from ..claims.loader import Claim, load_paths
+from ..claims.loader import Claim, load_text
 
 __all__ = ["case_parts", "plan", "evaluate_case", "run_batch", "EVIDENCE_ORDER", "join_id",
            "split_id"]
@@ -131,14 +131,23 @@ def holds_on(claim: Claim, env: dict, limits: Limits) -> str:
 
 
 @lru_cache(maxsize=8)
-def _claims(files: tuple[str, ...]) -> dict[str, Claim]:
-    return {c.name: c for c in load_paths(list(files))}
+def _claims(sources: tuple[tuple[str, str], ...]) -> dict[str, Claim]:
+    """The claims of (path, text) pairs, loaded once per process."""
+    return {c.name: c for path, text in sources for c in load_text(text, path)}
 
 
-def run_batch(files: tuple[str, ...], claim_name: str, case_ids: list[str],
+def sources_of(claims: list[Claim]) -> tuple[tuple[str, str], ...]:
+    """The (path, text) of every claim file: what workers need to rebuild the claims, even
+    on machines that do not have the files."""
+    from pathlib import Path
+    paths = sorted({str(Path(c.file).resolve()) for c in claims})
+    return tuple((p, Path(p).read_text(encoding="utf-8")) for p in paths)
+
+
+def run_batch(sources: tuple[tuple[str, str], ...], claim_name: str, case_ids: list[str],
               limits: dict) -> list[dict]:
     """Evaluate a batch of cases of one claim; plain data in, plain records out."""
-    claim = _claims(tuple(files))[claim_name]
+    claim = _claims(tuple(sources))[claim_name]
     bounds = Limits(**limits)
     return [evaluate_case(claim, case_id, bounds) for case_id in case_ids]
 

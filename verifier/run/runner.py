@@ -23,7 +23,7 @@ from ..claims.evaluate import Limits
 from ..claims.loader import Claim, load_paths
 from .cases import _claims as _claims_cache
 from .cases import (complexes_of, evaluate_case, family_label, limits_dict, plan, run_batch,
-                    split_id)
+                    sources_of, split_id)
 from .engines import Batch, DaskEngine, InlineEngine, ProcessEngine
 from .shrink import shrink
 from .store import Store
@@ -134,7 +134,7 @@ def run(paths, options: RunOptions | None = None, progress=None) -> RunResult:
     options = options or RunOptions()
     started = time.monotonic()
     claims = load_paths(paths)
-    files = tuple(sorted({str(Path(c.file).resolve()) for c in claims}))
+    files = sources_of(claims)
     request = request_of(claims, options)
     run_id = hashlib.sha256(json.dumps(request, sort_keys=True).encode()).hexdigest()[:16]
     store = Store(options.store)
@@ -164,7 +164,8 @@ def run(paths, options: RunOptions | None = None, progress=None) -> RunResult:
         store.close()
 
 
-def plan_ids(files: tuple[str, ...], claim_name: str, max_cases: int | None) -> list[str]:
+def plan_ids(files: tuple[tuple[str, str], ...], claim_name: str,
+             max_cases: int | None) -> list[str]:
     """Every case id of a claim, in order.  Engines that can run it remotely do
     (enumerating an exhaustive family is work for the cluster, not the client)."""
     return list(plan(_claims_cache(tuple(files))[claim_name], max_cases))
