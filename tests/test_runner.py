@@ -311,3 +311,17 @@ def test_check_can_sample_a_large_pass_certificate(certified):
     outcome = check(certified["refinement-invariance"], sample=5, seed=1)
     assert outcome.verified and outcome.cases_checked == 5
     assert "a sample of 5 cases" in outcome.reason
+
+
+def test_a_case_over_its_memory_is_recorded_as_limit(tmp_path):
+    # the exact Green function of a thrice-refined 5-vertex torus-like complex needs far
+    # more than 20 MB; with --case-memory 20 the case is recorded as a 'memory' limit
+    path = tmp_path / "big.toml"
+    path.write_text('[[claim]]\nname = "big"\nsource = "demo"\n'
+                    'statement = "size(K) < 10 or det(green(refine(K, 3)) ** 2) == 1"\n'
+                    '[[claim.over]]\nfamily = "catalog"\n'
+                    'names = ["simplex-boundary-1", "torus-7"]\n')
+    result = run([path], options(tmp_path, engine="processes", workers=1, case_memory=20))
+    (claim,) = result.claims
+    assert claim.counts["holds"] == 1 and claim.counts["limit"] == 1, claim.counts
+    assert claim.problems[0]["message"].startswith("memory:")

@@ -165,7 +165,7 @@ def cmd_run(args, console: Console) -> int:
     from .run.runner import RunOptions, run
 
     options = RunOptions(store=args.store, workers=args.workers, engine=args.engine,
-                         scheduler=args.scheduler,
+                         scheduler=args.scheduler, case_memory=args.case_memory,
                          resume=args.resume, max_cases=args.max_cases,
                          case_timeout=args.case_timeout, progress=not args.quiet)
     bar = None if args.quiet else _Bar(console)
@@ -381,6 +381,8 @@ def build_parser() -> argparse.ArgumentParser:
                      help="at most this many cases per claim")
     run.add_argument("--case-timeout", type=float, default=60.0,
                      help="seconds allowed for one case (default 60)")
+    run.add_argument("--case-memory", type=_positive_int, default=None, metavar="MB",
+                     help="memory one case may use on a worker, in megabytes (default: no cap)")
     run.add_argument("--quiet", action="store_true", help="no progress bar")
     run.set_defaults(handler=cmd_run)
 

@@ -115,6 +115,9 @@ def _judge(claim: Claim, env: dict, limits: Limits) -> dict:
         return {"outcome": "error", "message": error.message}
     except RecursionError:
         return {"outcome": "limit", "message": "max_depth: recursion too deep"}
+    except MemoryError:
+        return {"outcome": "limit", "message": "memory: the case needed more memory than its "
+                                               "worker may use (--case-memory)"}
     result = {"outcome": "holds" if outcome.holds else "fails", "evidence": outcome.evidence,
               "sides": outcome.sides, "witness": outcome.witness}
     if EVIDENCE_ORDER.index(outcome.evidence) > EVIDENCE_ORDER.index(claim.evidence):

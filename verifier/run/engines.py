@@ -51,13 +51,28 @@ class InlineEngine:
         pass
 
 
-def _worker_main(function, tasks, results):
+def _limit_memory(megabytes: int | None):
+    """Cap this process's address space at its current size plus ``megabytes``: a case
+    that needs more raises MemoryError, which the case records as a 'memory' limit."""
+    if not megabytes:
+        return
+    import resource
+    with open("/proc/self/statm") as statm:
+        pages = int(statm.read().split()[0])
+    current = pages * os.sysconf("SC_PAGE_SIZE")
+    cap = current + megabytes * 1024 * 1024
+    resource.setrlimit(resource.RLIMIT_AS, (cap, cap))
+
+
+def _worker_main(function, tasks, results, memory=None):
     """A worker: take (number, args) tasks until None, send (number, records | error).
     It stops by itself when the process that started it is gone (killed client).
     Its linear algebra runs single-threaded: the engine already keeps every core busy,
     and BLAS threads inherited through fork would only compete with the other workers."""
     from threadpoolctl import threadpool_limits
     threadpool_limits(1)
+    results.put((-1, os.getpid(), None, None))   # starts the queue's thread before any cap
+    _limit_memory(memory)
     parent = os.getppid()
     while True:
         try:
@@ -80,15 +95,18 @@ class ProcessEngine:
 
     name = "processes"
 
-    def __init__(self, workers: int | None = None, slack: float = 10.0):
+    def __init__(self, workers: int | None = None, slack: float = 10.0,
+                 memory: int | None = None):
         self.workers = max(1, workers or os.cpu_count() or 1)
         self.slack = slack
+        self.memory = memory
         methods = mp.get_all_start_methods()
         self.context = mp.get_context("fork" if "fork" in methods else "spawn")
 
     def _start(self, function):
         tasks = self.context.Queue()
-        process = self.context.Process(target=_worker_main, args=(function, tasks, self.results),
+        process = self.context.Process(target=_worker_main,
+                                       args=(function, tasks, self.results, self.memory),
                                        daemon=True)
         process.start()
         return {"process": process, "tasks": tasks, "batch": None, "number": None,
@@ -179,16 +197,17 @@ class DaskEngine:
     name = "dask"
 
     def __init__(self, workers: int | None = None, scheduler: str | None = None,
-                 slack: float = 10.0):
+                 slack: float = 10.0, memory: int | None = None):
         from dask.distributed import Client, LocalCluster
 
         self.cluster = None
         if scheduler:
             self.client = Client(scheduler, timeout="30s")
         else:
+            extra = {"memory_limit": f"{memory + 600}MB"} if memory else {}
             self.cluster = LocalCluster(n_workers=max(1, workers or os.cpu_count() or 1),
                                         threads_per_worker=1, processes=True,
-                                        dashboard_address=None, silence_logs=40)
+                                        dashboard_address=None, silence_logs=40, **extra)
             self.client = Client(self.cluster)
         self.workers = max(1, len(self.client.scheduler_info()["workers"]))
         self.slack = slack
@@ -213,7 +232,14 @@ class DaskEngine:
                 try:
                     records = future.result()
                 except Exception as error:        # noqa: BLE001 - recorded with the cases
-                    records = _failed(batch, "error", f"worker raised: {error}")
+                    if type(error).__name__ == "KilledWorker":
+                        if len(batch.case_ids) > 1:   # find the case that kills workers
+                            pending.extendleft(_split(batch))
+                            continue
+                        records = _failed(batch, "limit", "memory: workers kept dying on this "
+                                          "case (out of memory or crashed)")
+                    else:
+                        records = _failed(batch, "error", f"worker raised: {error}")
                 yield batch, records
             now = time.monotonic()
             for future, (batch, started) in list(running.items()):

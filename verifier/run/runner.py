@@ -39,6 +39,7 @@ class RunOptions:
     workers: int | None = None
     engine: str = "processes"
     scheduler: str | None = None          # dask: address of a running scheduler
+    case_memory: int | None = None        # megabytes a worker may add for one case
     resume: bool = False
     max_cases: int | None = None
     case_timeout: float = 60.0
@@ -150,8 +151,12 @@ def run(paths, options: RunOptions | None = None, progress=None) -> RunResult:
         resumed = store.open_run(run_id, request, options.engine)
         _claims_cache(files)   # loaded once here; forked workers inherit it
         engine_class = ENGINES[options.engine]
-        engine = (engine_class(options.workers, options.scheduler) if options.engine == "dask"
-                  else engine_class(options.workers))
+        if options.engine == "dask":
+            engine = engine_class(options.workers, options.scheduler, memory=options.case_memory)
+        elif options.engine == "processes":
+            engine = engine_class(options.workers, memory=options.case_memory)
+        else:
+            engine = engine_class(options.workers)
         try:
             results = [_run_claim(claim, files, run_id, store, engine, options, progress)
                        for claim in claims]
