@@ -37,3 +37,25 @@ def atlas_complexes(atlas_graphs) -> dict[str, list[Complex]]:
     """Every atlas graph as a 1-dimensional complex and as its flag (clique) complex."""
     return {"1-dimensional": [Complex.from_graph(g) for g in atlas_graphs],
             "flag": [Complex.from_graph(g, flag=True) for g in atlas_graphs]}
+
+
+ENERGY_ON_SIX_VERTICES = (
+    '[[claim]]\nname = "energy-6"\nstatement = "sum(green(K)) == euler(K)"\n'
+    'source = "O. Knill, Linear Algebra Appl. 600 (2020)"\nmax_cases = {cases}\n'
+    '[[claim.over]]\nfamily = "all-complexes"\nmax_vertices = 6\n')
+
+
+def wait_for_stored_cases(store, seconds: float = 180.0) -> bool:
+    """Wait until a run has written at least one case to the SQLite store."""
+    import sqlite3
+    import time
+    deadline = time.monotonic() + seconds
+    while time.monotonic() < deadline:
+        time.sleep(0.2)
+        try:
+            with sqlite3.connect(store) as db:
+                if db.execute("SELECT COUNT(*) FROM cases").fetchone()[0] > 0:
+                    return True
+        except sqlite3.OperationalError:
+            pass
+    return False

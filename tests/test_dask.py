@@ -17,6 +17,8 @@ import pytest
 from verifier.certificates import certificate_of
 from verifier.run.runner import RunOptions, digest_of, run
 
+from .conftest import ENERGY_ON_SIX_VERTICES, wait_for_stored_cases
+
 ROOT = Path(__file__).resolve().parent.parent
 LIBRARY = ROOT / "claims"
 
@@ -77,24 +79,14 @@ def test_a_killed_worker_costs_only_a_retry(cluster, tmp_path):
 def test_resume_across_engines_after_killing_the_client(tmp_path):
     # a dask run whose client (and local cluster) is killed, resumed with local processes
     claim = tmp_path / "energy-6.toml"
-    claim.write_text('[[claim]]\nname = "energy-6"\nstatement = "sum(green(K)) == euler(K)"\n'
-                     'source = "O. Knill, Linear Algebra Appl. 600 (2020)"\nmax_cases = 5000\n'
-                     '[[claim.over]]\nfamily = "all-complexes"\nmax_vertices = 6\n')
+    claim.write_text(ENERGY_ON_SIX_VERTICES.format(cases=5000))
     store = tmp_path / "s.sqlite"
     process = subprocess.Popen([sys.executable, "-m", "verifier", "run", str(claim), "--quiet",
                                 "--engine", "dask", "--workers", "2", "--store", str(store),
                                 "--certificates", str(tmp_path / "certs")],
                                stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
                                start_new_session=True, cwd=tmp_path)
-    deadline = time.monotonic() + 180
-    while time.monotonic() < deadline:
-        time.sleep(0.3)
-        try:
-            with sqlite3.connect(store) as db:
-                if db.execute("SELECT COUNT(*) FROM cases").fetchone()[0] > 0:
-                    break
-        except sqlite3.OperationalError:
-            pass
+    assert wait_for_stored_cases(store)
     time.sleep(random.Random(11).uniform(0.5, 1.5))
     os.killpg(process.pid, signal.SIGKILL)
     process.wait()

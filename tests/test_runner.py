@@ -21,6 +21,8 @@ from verifier.run.cases import holds_on
 from verifier.run.runner import RunOptions, run
 from verifier.run.shrink import candidates
 
+from .conftest import ENERGY_ON_SIX_VERTICES, wait_for_stored_cases
+
 ROOT = Path(__file__).resolve().parent.parent
 LIBRARY = ROOT / "claims"
 
@@ -91,23 +93,13 @@ def test_resume_after_sigkill_gives_the_same_digest(tmp_path):
     # a run killed with SIGKILL at a seeded random moment, then resumed, ends with the same
     # case count and digest as an uninterrupted run; no case is lost or stored twice
     claim = tmp_path / "energy-6.toml"
-    claim.write_text('[[claim]]\nname = "energy-6"\nstatement = "sum(green(K)) == euler(K)"\n'
-                     'source = "O. Knill, Linear Algebra Appl. 600 (2020)"\nmax_cases = 6000\n'
-                     '[[claim.over]]\nfamily = "all-complexes"\nmax_vertices = 6\n')
+    claim.write_text(ENERGY_ON_SIX_VERTICES.format(cases=6000))
     store = tmp_path / "killed.sqlite"
     certs = tmp_path / "certs"
     process = subprocess.Popen([sys.executable, "-m", "verifier", "run", str(claim), "--quiet",
                                 "--store", str(store), "--certificates", str(certs)],
                                stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
-    deadline = time.monotonic() + 120
-    while time.monotonic() < deadline:       # wait until the run has stored some cases
-        time.sleep(0.2)
-        try:
-            with sqlite3.connect(store) as db:
-                if db.execute("SELECT COUNT(*) FROM cases").fetchone()[0] > 0:
-                    break
-        except sqlite3.OperationalError:
-            pass
+    assert wait_for_stored_cases(store)
     time.sleep(random.Random(7).uniform(0.5, 2.0))   # then a seeded random moment later
     os.kill(process.pid, signal.SIGKILL)
     process.wait()
