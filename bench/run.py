@@ -191,7 +191,7 @@ def bench_runner_atlas():
         best, result = float("inf"), None
         for attempt in range(3):
             options = RunOptions(store=str(folder / f"{tag}-{attempt}.sqlite"), workers=workers,
-                                 engine="processes", progress=False, max_cases=max_cases)
+                                 engine="processes", max_cases=max_cases)
             start = time.perf_counter()
             result = run([claim], options)
             best = min(best, time.perf_counter() - start)
@@ -230,8 +230,7 @@ def bench_dask_atlas():
             best, result = float("inf"), None
             for attempt in range(3):
                 options = RunOptions(store=str(folder / f"{tag}-{attempt}.sqlite"), workers=2,
-                                     engine=engine, scheduler=cluster.scheduler_address,
-                                     progress=False)
+                                     engine=engine, scheduler=cluster.scheduler_address)
                 start = time.perf_counter()
                 result = run([claim], options)
                 best = min(best, time.perf_counter() - start)
@@ -294,8 +293,7 @@ def bench_paper_scale():
 
     folder = Path(tempfile.mkdtemp(prefix="bench-scale-"))
     start = time.perf_counter()
-    result = run([ROOT / "claims"], RunOptions(store=str(folder / "s.sqlite"), workers=2,
-                                               progress=False))
+    result = run([ROOT / "claims"], RunOptions(store=str(folder / "s.sqlite"), workers=2))
     wall = time.perf_counter() - start
     assert result.ok
     claims = {}

@@ -43,9 +43,8 @@ def comparable(certificate: dict) -> dict:
 def test_library_gives_the_same_digests_and_certificates_on_dask(cluster, tmp_path):
     local, _client = cluster
     on_dask = run([LIBRARY], RunOptions(store=str(tmp_path / "d.sqlite"), engine="dask",
-                                        scheduler=local.scheduler_address, progress=False))
-    on_processes = run([LIBRARY], RunOptions(store=str(tmp_path / "p.sqlite"), workers=2,
-                                             progress=False))
+                                        scheduler=local.scheduler_address))
+    on_processes = run([LIBRARY], RunOptions(store=str(tmp_path / "p.sqlite"), workers=2))
     assert on_dask.ok and on_processes.ok
     for a, b in zip(on_dask.claims, on_processes.claims):
         assert a.claim.name == b.claim.name
@@ -56,8 +55,7 @@ def test_library_gives_the_same_digests_and_certificates_on_dask(cluster, tmp_pa
 def test_a_killed_worker_costs_only_a_retry(cluster, tmp_path):
     local, client = cluster
     claim = LIBRARY / "energy.toml"
-    reference = run([claim], RunOptions(store=str(tmp_path / "ref.sqlite"), engine="inline",
-                                        progress=False))
+    reference = run([claim], RunOptions(store=str(tmp_path / "ref.sqlite"), engine="inline"))
     pids = list(client.run(os.getpid).values())
 
     def kill_one():
@@ -67,7 +65,7 @@ def test_a_killed_worker_costs_only_a_retry(cluster, tmp_path):
     killer = threading.Thread(target=kill_one)
     killer.start()
     result = run([claim], RunOptions(store=str(tmp_path / "k.sqlite"), engine="dask",
-                                     scheduler=local.scheduler_address, progress=False))
+                                     scheduler=local.scheduler_address))
     killer.join()
     (claim_result,) = result.claims
     assert claim_result.cases == reference.claims[0].cases
@@ -97,8 +95,7 @@ def test_resume_across_engines_after_killing_the_client(tmp_path):
                               str(tmp_path / "certs")], capture_output=True, text=True,
                              timeout=300, cwd=tmp_path)
     assert resumed.returncode == 0, resumed.stderr
-    whole = run([claim], RunOptions(store=str(tmp_path / "w.sqlite"), workers=2,
-                                    progress=False))
+    whole = run([claim], RunOptions(store=str(tmp_path / "w.sqlite"), workers=2))
     with sqlite3.connect(store) as db:
         rows = db.execute("SELECT case_id, complex_hash FROM cases").fetchall()
         runs = db.execute("SELECT COUNT(*) FROM runs").fetchone()[0]

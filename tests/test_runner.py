@@ -28,7 +28,7 @@ LIBRARY = ROOT / "claims"
 
 
 def options(tmp_path, **extra) -> RunOptions:
-    settings = dict(store=str(tmp_path / "store.sqlite"), engine="inline", progress=False)
+    settings = dict(store=str(tmp_path / "store.sqlite"), engine="inline")
     settings.update(extra)
     return RunOptions(**settings)
 
@@ -186,7 +186,7 @@ def test_nothing_runs_until_every_claim_loads(tmp_path):
 def certified(tmp_path_factory):
     folder = tmp_path_factory.mktemp("certs")
     result = run([LIBRARY / "hydrogen-2d-fails.toml", LIBRARY / "refinement-invariance.toml"],
-                 RunOptions(store=str(folder / "s.sqlite"), engine="inline", progress=False))
+                 RunOptions(store=str(folder / "s.sqlite"), engine="inline"))
     paths = write_certificates(result, folder)
     return {p.stem: p for p in paths}
 

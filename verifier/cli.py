@@ -103,6 +103,8 @@ def cmd_show(args, console: Console) -> int:
     from .families import catalog
 
     if args.list:
+        if args.png is not None:
+            raise UserError("show: --png draws a complex and cannot be combined with --list")
         table = Table(title="catalog", show_lines=False)
         table.add_column("name", no_wrap=True)
         table.add_column("title")
@@ -117,7 +119,11 @@ def cmd_show(args, console: Console) -> int:
     if not args.complexes:
         raise UserError("show: name at least one complex (catalog name or facet file), "
                         "or use --list")
+    if args.png is not None:
+        _check_picture_path(args.png, len(args.complexes))
     loaded = [load_complex(spec) for spec in args.complexes]  # all inputs first
+    if args.png is not None:
+        _write_picture(loaded[0][1], args.png)
     for name, K in loaded:
         start = time.perf_counter()
         rows = describe(K)
@@ -129,7 +135,41 @@ def cmd_show(args, console: Console) -> int:
             table.add_row(key, value)
         console.print(table)
         console.print(f"[dim]{len(K.simplices)} simplices, exact, {elapsed:.2f} s[/dim]\n")
+    if args.png is not None:
+        console.print(f"drawing written to {escape(args.png)}", highlight=False)
     return 0
+
+
+_PICTURE_SUFFIXES = (".png", ".svg")
+
+
+def _check_picture_path(path: str, count: int) -> None:
+    """Refuse a --png request before any work: one complex, a known picture suffix."""
+    if count != 1:
+        raise UserError(f"show --png: draws one complex, but {count} were named")
+    suffix = Path(path).suffix.lower()
+    if suffix not in _PICTURE_SUFFIXES:
+        raise UserError(f"--png {path}: unknown picture format {suffix or '(no suffix)'!r}; "
+                        "use a file name ending in .png or .svg")
+
+
+def _write_picture(K: Complex, path: str) -> None:
+    """Draw K (verifier.drawing) and write it as PNG or SVG according to the suffix."""
+    from . import drawing
+
+    try:
+        figure = drawing.draw_complex(K)
+        if Path(path).suffix.lower() == ".svg":
+            data = drawing.figure_svg(figure).encode("utf-8")
+        else:
+            data = drawing.figure_png(figure)
+    except drawing.DrawingError as error:
+        raise UserError(f"--png {path}: {error}") from None
+    try:
+        Path(path).write_bytes(data)
+    except OSError as error:
+        raise UserError(f"--png {path}: cannot write the file ({error.strerror or error})") \
+            from None
 
 
 class _Bar:
@@ -167,7 +207,7 @@ def cmd_run(args, console: Console) -> int:
     options = RunOptions(store=args.store, workers=args.workers, engine=args.engine,
                          scheduler=args.scheduler, case_memory=args.case_memory,
                          resume=args.resume, max_cases=args.max_cases,
-                         case_timeout=args.case_timeout, progress=not args.quiet)
+                         case_timeout=args.case_timeout)
     bar = None if args.quiet else _Bar(console)
     try:
         result = run(args.paths, options, progress=bar)
@@ -361,6 +401,8 @@ def build_parser() -> argparse.ArgumentParser:
     show.add_argument("complexes", nargs="*", metavar="COMPLEX",
                       help="catalog name or facet file (.txt/.json)")
     show.add_argument("--list", action="store_true", help="list the catalog names")
+    show.add_argument("--png", metavar="FILE", default=None,
+                      help="also draw the complex into FILE (.png or .svg)")
     show.set_defaults(handler=cmd_show)
 
     run = commands.add_parser("run", help="test claims over their families")

@@ -22,8 +22,7 @@ from pathlib import Path
 from ..claims.evaluate import Limits
 from ..claims.loader import Claim, load_paths
 from .cases import _claims as _claims_cache
-from .cases import (complexes_of, evaluate_case, family_label, limits_dict, plan, run_batch,
-                    sources_of, split_id)
+from .cases import complexes_of, family_label, limits_dict, plan, run_batch, sources_of
 from .engines import Batch, DaskEngine, InlineEngine, ProcessEngine
 from .shrink import shrink
 from .store import Store
@@ -44,7 +43,6 @@ class RunOptions:
     max_cases: int | None = None
     case_timeout: float = 60.0
     batch_size: int | None = None
-    progress: bool = True
     shrink_seconds: float = 300.0
 
 
@@ -255,10 +253,3 @@ def evaluate_case_env(claim: Claim, env: dict, limits: Limits) -> dict:
     outcome = evaluate_claim(claim.statement, env, Context(limits))
     return {"sides": outcome.sides, "witness": outcome.witness, "evidence": outcome.evidence}
 
-
-def recorded_case(claim: Claim, case_id: str, limits: Limits) -> dict:
-    """Re-evaluate one stored case (used by tests and by `verifier show` of a case)."""
-    return evaluate_case(claim, case_id, limits)
-
-
-__all__ += ["recorded_case", "split_id"]
