@@ -31,7 +31,7 @@ from importlib import metadata
 from pathlib import Path
 
 __all__ = ["SCHEMA", "canonical", "seal", "write_certificates", "check", "CheckResult",
-           "CertificateError"]
+           "CertificateError", "Certificate", "load"]
 
 SCHEMA = "simplicial-verifier/certificate/1"
 
@@ -125,6 +125,19 @@ def write_certificates(run, folder: str | Path) -> list[Path]:
         _atomic_write(path, json.dumps(cert, sort_keys=True, indent=1, ensure_ascii=False) + "\n")
         written.append(path)
     return written
+
+
+class Certificate(dict):
+    """A certificate's data (a dict) that shows itself in a notebook."""
+
+    def _repr_html_(self) -> str:
+        from .report import certificate_html
+        return certificate_html(self)
+
+
+def load(path: str | Path) -> Certificate:
+    """Read a certificate file (no checking: see :func:`check`)."""
+    return Certificate(_load(Path(path)))
 
 
 # ---------------------------------------------------------------------- check

@@ -3,6 +3,8 @@
     verifier run PATH...          test the claims in claim files or folders
     verifier check CERT...        re-verify certificates with the independent backend
     verifier show COMPLEX...      exact invariants of catalog names or facet files
+                                  (--png FILE also draws a complex, .png or .svg)
+    verifier report               a run's report: Markdown, one HTML page, LaTeX
     verifier functions            the functions of the claim language
     verifier families             the families claims are tested over
 
@@ -136,7 +138,7 @@ def cmd_show(args, console: Console) -> int:
         console.print(table)
         console.print(f"[dim]{len(K.simplices)} simplices, exact, {elapsed:.2f} s[/dim]\n")
     if args.png is not None:
-        console.print(f"drawing written to {escape(args.png)}", highlight=False)
+        console.print(f"drawing written to {escape(args.png)}", highlight=False, soft_wrap=True)
     return 0
 
 
@@ -241,7 +243,7 @@ def cmd_run(args, console: Console) -> int:
                           f" (from case {escape(c['case_id'])}, {len(c['steps'])} shrinking "
                           "steps)", highlight=False)
             sides = c["sides"]
-            if sides and len(sides[0]) + len(sides[1]) < 160:
+            if len(sides) == 2 and len(sides[0]) + len(sides[1]) < 160:
                 console.print(f"    {escape(sides[0])}  vs  {escape(sides[1])}", highlight=False)
             elif c.get("witness"):
                 console.print(f"    differs at {escape(str(c['witness']))}", highlight=False)
@@ -358,6 +360,24 @@ def cmd_summary(args, console: Console) -> int:
     return 0
 
 
+def cmd_report(args, console: Console) -> int:
+    from .report import ReportError, write_latex, write_report
+
+    if not Path(args.store).is_file():
+        raise UserError(f"{args.store}: no such store (run `verifier run` first)")
+    try:
+        written = write_report(args.store, args.out, run_id=args.run,
+                               certificates_dir=args.certificates)
+        if args.latex:
+            written.append(write_latex(args.store, args.latex, run_id=args.run,
+                                       certificates_dir=args.certificates))
+    except ReportError as error:
+        raise UserError(f"report: {error}") from None
+    for path in written:
+        console.print(f"wrote {escape(str(path))}", highlight=False, soft_wrap=True)
+    return 0
+
+
 def cmd_functions(args, console: Console) -> int:
     from .claims.functions import QUANTIFIERS, TABLE
     console.print("[bold]Functions of the claim language[/bold] (exact; sources beside each)\n")
@@ -451,6 +471,18 @@ def build_parser() -> argparse.ArgumentParser:
     summary.add_argument("--store", default="reports/verifier.sqlite", help="SQLite store")
     summary.add_argument("--run", default=None, help="run id (default: the latest run)")
     summary.set_defaults(handler=cmd_summary)
+
+    report = commands.add_parser("report", help="write a run's report (Markdown, HTML, LaTeX)")
+    report.add_argument("--store", default="reports/verifier.sqlite", help="SQLite store")
+    report.add_argument("--out", default="reports", metavar="DIR",
+                        help="folder for report.md, report.html and the pictures "
+                             "(default: reports)")
+    report.add_argument("--run", default=None, help="run id (default: the latest run)")
+    report.add_argument("--latex", default=None, metavar="FILE",
+                        help="also write a LaTeX document of the results to FILE")
+    report.add_argument("--certificates", default="reports/certificates", metavar="DIR",
+                        help="folder holding the run's certificates")
+    report.set_defaults(handler=cmd_report)
 
     functions = commands.add_parser("functions", help="list the claim language's functions")
     functions.set_defaults(handler=cmd_functions)

@@ -359,6 +359,12 @@ class Complex:
         shown = facets if len(facets) <= 8 else facets[:8] + ["..."]
         return f"Complex(f_vector={list(self.f_vector)}, facets={shown})"
 
+    def _repr_html_(self) -> str:
+        """Notebook display: a small drawing and key invariants (see verifier.drawing)."""
+        from .drawing import complex_html   # lazy: matplotlib only when a notebook asks
+
+        return complex_html(self)
+
     # ------------------------------------------------------------- isomorphism
     @property
     def hash_is_canonical(self) -> bool:

@@ -73,6 +73,10 @@ class RunResult:
     def ok(self) -> bool:
         return all(c.meets_expectation for c in self.claims)
 
+    def _repr_html_(self) -> str:
+        from ..report import run_html
+        return run_html(self)
+
 
 def request_of(claims: list[Claim], options: RunOptions) -> dict:
     """What identifies a run: the claims (as data, with their files' contents hashed) and

@@ -1,0 +1,1096 @@
+"""Reports of a run (SPEC §9): Markdown, one self-contained HTML page, and LaTeX.
+
+A report is made from what a run left behind and nothing else: the SQLite store (the
+run's request, which holds every claim's statement, source and families; the cases with
+their outcomes and times; the shrunk counterexamples) and the certificates folder.  The
+runner is never consulted, so a report can be written on another machine, later, from a
+copied store.
+
+What each claim gets:
+
+* its title, statement, source, expectation and verdict;
+* each ``[[claim.over]]`` family with its parameters and the cases the store holds for
+  it, split by outcome;
+* the summed case time;
+* the certificate file and the exact command that re-checks it;
+* for a counterexample: a drawing beside the exact values of both sides and the witness;
+* for a spectral claim (one that uses the connection matrix, its inverse, its
+  characteristic polynomial, signature, multiplicities or zeta function): the spectrum
+  of L (or of L² when the statement squares it) of the counterexample, or of one tested
+  complex when the claim held.
+
+The HTML page is one file: styles inline, pictures as ``data:`` URIs, a
+Content-Security-Policy that forbids every network request, and the report's numbers
+as a JSON block (``<script type="application/json" id="verifier-report-data">``, data
+only, never executed) for programs to read.
+
+:func:`write_latex` writes a LaTeX document (``article`` class, ``tikz`` and nothing
+and ``longtable``, default fonts) with a table of claims × families × outcomes and, for each
+counterexample, its facet list and a TikZ drawing.
+
+References:
+    [K1] O. Knill, "The energy of a simplicial complex", Linear Algebra Appl. 600 (2020)
+         96-129 (the connection matrix L and its inverse, the Green function).
+    [K2] O. Knill, "One can hear the Euler characteristic of a simplicial complex",
+         arXiv:1711.09527 (2017) (signature of L).
+"""
+
+from __future__ import annotations
+
+import html
+import json
+import math
+import re
+import sqlite3
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+__all__ = ["ReportError", "RunData", "ClaimData", "FamilyData", "CAUTION", "collect",
+           "write_report", "write_latex", "counterexample_drawing", "is_spectral", "is_squared",
+           "latex_escape", "recheck_command"]
+
+CAUTION = "Checking an identity on finitely many complexes is evidence, not proof"
+
+SPECTRAL_FUNCTIONS = ("connection", "green", "charpoly", "signature", "positive", "negative",
+                      "multiplicity", "zeta")
+_SPECTRAL = re.compile(r"\b(" + "|".join(SPECTRAL_FUNCTIONS) + r")\s*\(")
+_SQUARED = re.compile(r"\bconnection\s*\(\s*\w+\s*\)\s*\*\*\s*2\b")
+_OUTCOMES = ("holds", "fails", "outside", "error", "limit", "weak")
+_SPECTRUM_SIMPLICES = 150          # largest complex whose spectrum stands for a held claim
+_REPRESENTATIVES = 12              # held cases tried when choosing that complex
+
+
+class ReportError(Exception):
+    """The store cannot give a report (no such file, no run, unknown run id)."""
+
+
+# ------------------------------------------------------------------- the data
+@dataclass
+class FamilyData:
+    """One ``[[claim.over]]`` entry of a claim and the cases the store holds for it."""
+    index: int
+    bind: str
+    name: str
+    parameters: dict
+    cases: int = 0
+    counts: dict = field(default_factory=lambda: {o: 0 for o in _OUTCOMES})
+
+
+@dataclass
+class ClaimData:
+    """One claim of a run, as the store and the certificates folder describe it."""
+    name: str
+    title: str
+    statement: str
+    where: str | None
+    expect: str
+    evidence: str
+    source: str
+    families: list[FamilyData]
+    counts: dict
+    cases: int
+    seconds: float
+    verdict: str
+    certificate: str | None            # path of the certificate file, if present
+    certificate_note: str              # what the certificate folder says about it
+    counterexample: dict | None
+    spectral: bool
+    squared: bool
+
+
+@dataclass
+class RunData:
+    """A run: its id, times, engine and claims."""
+    store: str
+    run_id: str
+    started: float
+    finished: float | None
+    engine: str
+    claims: list[ClaimData]
+
+    def numbers(self) -> dict:
+        """The report's numbers as plain data (what the HTML page embeds as JSON)."""
+        return {"run": self.run_id, "store": self.store, "claims": {
+            c.name: {"cases": c.cases, "counts": dict(c.counts), "seconds": round(c.seconds, 6),
+                     "verdict": c.verdict, "families": [
+                         {"index": f.index, "family": f.name, "bind": f.bind,
+                          "cases": f.cases, "counts": dict(f.counts)} for f in c.families]}
+            for c in self.claims}}
+
+
+# ------------------------------------------------------------------ small helpers
+def is_spectral(statement: str) -> bool:
+    """Whether a claim's statement is spectral: it calls a function of the spectrum of the
+    connection matrix.
+
+    The connection matrix L of K has L[x, y] = 1 when the simplices x and y intersect
+    [K1]; a statement is spectral when it calls ``connection``, ``green`` (L⁻¹),
+    ``charpoly``, ``signature``, ``positive``, ``negative``, ``multiplicity`` or ``zeta``.
+
+    Parameters: statement -- the claim's statement text.
+    Returns: True or False.
+
+    >>> is_spectral("sum(green(K)) == euler(K)"), is_spectral("euler(K) == wu(K)")
+    (True, False)
+
+    Notes: a word match on function calls; a name inside another word does not count.
+    Reference: [K1], [K2].
+    """
+    return bool(_SPECTRAL.search(statement or ""))
+
+
+def is_squared(statement: str) -> bool:
+    """Whether a statement speaks of L² (``connection(K) ** 2``), so the picture should
+    show the spectrum of L² with its reciprocal pairing λ ↔ 1/λ.
+
+    Parameters: statement -- the claim's statement text.
+    Returns: True or False.
+
+    >>> is_squared("is_reciprocal(charpoly(connection(K) ** 2))")
+    True
+    >>> is_squared("det(connection(K)) ** 2 == 1")
+    False
+
+    Notes: a regular expression on the text.  Reference: [K1].
+    """
+    return bool(_SQUARED.search(statement or ""))
+
+
+def recheck_command(certificate: str | Path) -> str:
+    """The command that re-checks a certificate with the independent backend.
+
+    >>> recheck_command("reports/certificates/energy.json")
+    'verifier check reports/certificates/energy.json'
+    """
+    text = str(certificate)
+    if re.search(r"[^\w@%+=:,./-]", text):
+        text = "'" + text.replace("'", "'\"'\"'") + "'"
+    return f"verifier check {text}"
+
+
+_LATEX_SPECIAL = {"\\": r"\textbackslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#",
+                  "_": r"\_", "{": r"\{", "}": r"\}", "~": r"\textasciitilde{}",
+                  "^": r"\textasciicircum{}", "<": r"\textless{}", ">": r"\textgreater{}",
+                  "|": r"\textbar{}", '"': "''"}
+_LATEX_UNICODE = {"χ": r"$\chi$", "λ": r"$\lambda$", "Λ": r"$\Lambda$", "ω": r"$\omega$",
+                  "ζ": r"$\zeta$", "σ": r"$\sigma$", "Σ": r"$\Sigma$", "μ": r"$\mu$",
+                  "π": r"$\pi$", "Δ": r"$\Delta$", "δ": r"$\delta$", "β": r"$\beta$",
+                  "α": r"$\alpha$", "γ": r"$\gamma$", "ε": r"$\varepsilon$",
+                  "≤": r"$\leq$", "≥": r"$\geq$", "≠": r"$\neq$", "×": r"$\times$",
+                  "·": r"$\cdot$", "⊆": r"$\subseteq$", "∈": r"$\in$",
+                  "↔": r"$\leftrightarrow$",
+                  "→": r"$\to$", "²": r"$^2$", "³": r"$^3$", "⁻": r"$^-$", "¹": r"$^1$",
+                  "–": "--", "—": "---", "‘": "`", "’": "'", "“": "``", "”": "''",
+                  "…": r"\ldots{}", "\u00a0": "~"}
+
+
+_LATEX_LETTERS = {"ß": r"\ss{}", "ø": r"\o{}", "Ø": r"\O{}", "æ": r"\ae{}", "Æ": r"\AE{}",
+                  "œ": r"\oe{}", "Œ": r"\OE{}", "ł": r"\l{}", "Ł": r"\L{}", "ı": r"\i{}",
+                  "§": r"$\S$", "¶": r"$\P$", "©": "(c)", "°": r"$^\circ$",
+                  "±": r"$\pm$", "÷": r"$\div$", "¬": r"$\neg$"}
+_LATEX_ACCENTS = {"\u0301": "'", "\u0300": "`", "\u0302": "^", "\u0308": '"', "\u0303": "~",
+                  "\u0327": "c", "\u030c": "v", "\u030b": "H", "\u0306": "u", "\u0304": "=",
+                  "\u0307": ".", "\u030a": "r"}
+
+
+def latex_escape(text) -> str:
+    r"""Text made safe for LaTeX: special characters escaped, other characters spelled out
+    in ASCII, so the result compiles with LaTeX's default fonts and nothing else.
+
+    The ten characters LaTeX treats specially (and ``<``, ``>``, ``|``, ``"``, which
+    the default font encoding misprints) become commands; Greek letters and common
+    mathematical symbols become math; a Latin letter with accents becomes the letter
+    under accent commands (``ö`` -> ``\"{o}``), a few other letters their commands;
+    any other character is written as its code point ``[U+XXXX]``.
+
+    Parameters: text -- any value (converted with ``str``).
+    Returns: LaTeX source, ASCII only.
+
+    >>> print(latex_escape("chi_2 & 50% of $x^2 {a} ~ \\"))
+    chi\_2 \& 50\% of \$x\textasciicircum{}2 \{a\} \textasciitilde{} \textbackslash{}
+    >>> print(latex_escape("χ(K) ≤ 2, Möbius, Erdős, Łódź, 日"))
+    $\chi$(K) $\leq$ 2, M\"{o}bius, Erd\H{o}s, \L{}\'{o}d\'{z}, [U+65E5]
+
+    Notes: one pass over the characters, so an escape is never escaped again; accents
+    by Unicode canonical decomposition (NFD).
+    Reference: L. Lamport, "LaTeX: A Document Preparation System", 2nd ed. (1994)
+    §2.2.1 (special characters) and §3.2.1 (accents).
+    """
+    import unicodedata
+
+    out = []
+    for ch in str(text):
+        if ch in _LATEX_SPECIAL:
+            out.append(_LATEX_SPECIAL[ch])
+        elif ch in "\n\t\r":
+            out.append(" ")
+        elif " " <= ch <= "~":
+            out.append(ch)
+        elif ch in _LATEX_UNICODE:
+            out.append(_LATEX_UNICODE[ch])
+        elif ch in _LATEX_LETTERS:
+            out.append(_LATEX_LETTERS[ch])
+        elif ord(ch) < 32 or 0x7F <= ord(ch) < 0xA0:
+            continue
+        else:
+            parts = unicodedata.normalize("NFD", ch)
+            base, marks = parts[0], parts[1:]
+            if base.isascii() and base.isalpha() and marks and all(
+                    m in _LATEX_ACCENTS for m in marks):
+                result = r"\i" if base == "i" else r"\j" if base == "j" else base
+                for mark in marks:
+                    result = "\\" + _LATEX_ACCENTS[mark] + "{" + result + "}"
+                out.append(result)
+            else:
+                out.append(f"[U+{ord(ch):04X}]")
+    return "".join(out)
+
+
+def _parameter_text(spec: dict) -> str:
+    """A family table's parameters as one line: ``max_vertices = 5, as = flag``."""
+    parts = []
+    for key, value in spec.items():
+        if key in ("family", "bind", "_base"):
+            continue
+        if isinstance(value, dict) and "family" in value:
+            inner = _parameter_text(value)
+            value = f"{value['family']}({inner})" if inner else value["family"]
+        elif isinstance(value, list):
+            value = "[" + ", ".join(_scalar(v) for v in value) + "]"
+        else:
+            value = _scalar(value)
+        parts.append(f"{key} = {value}")
+    return ", ".join(parts)
+
+
+def _scalar(value) -> str:
+    if isinstance(value, dict):
+        return _parameter_text(value) if "family" not in value else (
+            f"{value['family']}({_parameter_text(value)})")
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    return str(value)
+
+
+def _refs(case_id: str) -> list[int]:
+    """The [[claim.over]] positions a case id draws from ('0|a & 2|b' -> [0, 2]).
+
+    A lone ' & ' separates the parts of a case of several variables (an '&' inside a
+    family's own id is doubled, so it never reads as a separator).
+    """
+    refs = []
+    for piece in case_id.split(" & "):
+        head = piece.split("|", 1)[0]
+        if head.isdigit():
+            refs.append(int(head))
+    return refs
+
+
+def _verdict(expect: str, counts: dict) -> str:
+    """What a reader is told about a claim, from its counts and its expectation."""
+    failing = counts.get("fails", 0) > 0
+    unsettled = sum(counts.get(o, 0) for o in ("error", "limit", "weak"))
+    if expect == "fails":
+        return ("fails, as expected" if failing else
+                "incomplete" if unsettled else "holds, expected to fail")
+    return "fails" if failing else ("incomplete" if unsettled else "holds")
+
+
+# ------------------------------------------------------------------- collecting
+def _open(store_path) -> sqlite3.Connection:
+    path = Path(store_path)
+    if not path.is_file():
+        raise ReportError(f"{store_path}: no such store (run `verifier run` first)")
+    try:
+        db = sqlite3.connect(f"file:{path}?mode=ro", uri=True, timeout=30)
+        db.execute("SELECT run_id, request, started, finished, engine FROM runs LIMIT 1")
+        db.execute("SELECT claim, case_id, outcome, seconds FROM cases LIMIT 1")
+        db.execute("SELECT run_id, claim, record FROM counterexamples LIMIT 1")
+    except sqlite3.DatabaseError as error:
+        raise ReportError(f"{store_path}: not a verifier store ({error})") from None
+    return db
+
+
+def _family_counts(db, run_id: str, claim: str, families: list[FamilyData]):
+    """Fill each family's case counts (by outcome) from the store.
+
+    A case of one variable belongs to one family; SQL groups those by the position
+    before the first '|'.  A case of several variables counts for every family it draws
+    from (so for such claims the family rows add up to more than the cases)."""
+    by_index = {f.index: f for f in families}
+
+    def add(index: int, outcome: str, count: int):
+        entry = by_index.get(index)
+        if entry is not None:
+            entry.counts[outcome] = entry.counts.get(outcome, 0) + count
+            entry.cases += count
+
+    rows = db.execute(
+        "SELECT substr(case_id, 1, instr(case_id, '|') - 1), outcome, COUNT(*) FROM cases "
+        "WHERE run_id = ? AND claim = ? AND instr(case_id, ' & ') = 0 GROUP BY 1, 2",
+        (run_id, claim))
+    for ref, outcome, count in rows:
+        if str(ref).isdigit():
+            add(int(ref), outcome, count)
+    rows = db.execute("SELECT case_id, outcome FROM cases WHERE run_id = ? AND claim = ? AND "
+                      "instr(case_id, ' & ') > 0", (run_id, claim))
+    for case_id, outcome in rows:
+        for ref in dict.fromkeys(_refs(case_id)):
+            add(ref, outcome, 1)
+
+
+def _certificate(folder: Path, name: str, run_id: str) -> tuple[str | None, str]:
+    path = folder / f"{name}.json"
+    if not path.is_file():
+        return None, "no certificate in the folder (a run with unsettled cases writes none)"
+    try:
+        data = json.loads(path.read_text(encoding="utf-8"))
+    except (OSError, UnicodeDecodeError, json.JSONDecodeError) as error:
+        return str(path), f"the file cannot be read as a certificate ({error})"
+    if not isinstance(data, dict):
+        return str(path), "the file is not a certificate (not a JSON object)"
+    kind = data.get("kind", "?")
+    if data.get("run") != run_id:
+        return str(path), (f"{kind} certificate of another run ({data.get('run')}); "
+                           "re-run to refresh it")
+    return str(path), f"{kind} certificate of this run"
+
+
+def _example_store(folder) -> Path:
+    """A tiny store for the examples: one run of the claim chi(K) == 1 on three complexes,
+    a point and a filled triangle (chi = 1, it holds) and the triangle's boundary, a
+    circle (chi = 3 - 3 = 0, it fails and is the stored counterexample)."""
+    from .run.store import Store
+
+    path = Path(folder) / "example.sqlite"
+    claim = {"name": "contractible", "title": "chi(K) = 1", "statement": "euler(K) == 1",
+             "where": None, "expect": "holds", "evidence": "exact", "max_cases": None,
+             "source": "an example", "over": [{"family": "all-complexes", "max_vertices": 3,
+                                               "min_vertices": 1, "bind": "K"}]}
+    store = Store(path)
+    store.open_run("example-run", {"claims": [claim]}, "inline")
+    store.add_cases("example-run", [
+        {"claim": "contractible", "case_id": f"0|all-complexes/{cid}", "family": "all-complexes",
+         "complex_hash": cid, "outcome": outcome, "sides": [chi, "1"], "seconds": 0.001}
+        for cid, outcome, chi in (("0", "holds", "1"), ("012", "holds", "1"),
+                                  ("01-02-12", "fails", "0"))])
+    store.save_counterexample("example-run", "contractible", "0|all-complexes/01-02-12", {
+        "case_id": "0|all-complexes/01-02-12", "family": "all-complexes",
+        "complexes": {"K": [[0, 1], [0, 2], [1, 2]]}, "sides": ["0", "1"], "witness": None,
+        "steps": [], "minimal": True})
+    store.finish_run("example-run")
+    store.close()
+    return path
+
+
+def collect(store_path, run_id: str | None = None,
+            certificates_dir: str | Path = "reports/certificates") -> RunData:
+    """Everything a report shows about one run, read from the store and the certificates.
+
+    Parameters:
+        store_path: the SQLite store written by ``verifier run``.
+        run_id: the run (default: the latest one started).
+        certificates_dir: where ``verifier run`` wrote the certificates.
+
+    Returns: a :class:`RunData` (claims in the order of the run's request).
+
+    Raises :class:`ReportError` for a missing or foreign file, an empty store or an
+    unknown run id (the message names them).
+
+    >>> import tempfile
+    >>> folder = tempfile.mkdtemp()
+    >>> run = collect(_example_store(folder), certificates_dir=folder)
+    >>> claim = run.claims[0]
+    >>> claim.verdict, claim.cases, claim.counts["holds"], claim.counts["fails"]
+    ('fails', 3, 2, 1)
+    >>> claim.counterexample["complexes"], claim.families[0].cases
+    ({'K': [[0, 1], [0, 2], [1, 2]]}, 3)
+
+    Notes: one grouped query per claim; cases of several variables are read row by row.
+    """
+    db = _open(store_path)
+    try:
+        if run_id is None:
+            row = db.execute("SELECT run_id FROM runs ORDER BY started DESC LIMIT 1").fetchone()
+            if row is None:
+                raise ReportError(f"{store_path}: the store holds no run")
+            run_id = row[0]
+        row = db.execute("SELECT request, started, finished, engine FROM runs WHERE run_id = ?",
+                         (run_id,)).fetchone()
+        if row is None:
+            known = [r[0] for r in db.execute(
+                "SELECT run_id FROM runs ORDER BY started DESC LIMIT 3")]
+            raise ReportError(f"{store_path}: no run {run_id!r} (latest: "
+                              f"{', '.join(known) or 'none'})")
+        request = json.loads(row[0])
+        started, finished, engine = row[1], row[2], row[3] or "?"
+        folder = Path(certificates_dir)
+        claims = []
+        for spec in request.get("claims", []):
+            name = spec["name"]
+            families = [FamilyData(i, over.get("bind", "K"), over.get("family", "?"),
+                                   {k: v for k, v in over.items() if k not in ("bind",)})
+                        for i, over in enumerate(spec.get("over", []))]
+            counts = {o: 0 for o in _OUTCOMES}
+            seconds = 0.0
+            for outcome, count, spent in db.execute(
+                    "SELECT outcome, COUNT(*), SUM(seconds) FROM cases WHERE run_id = ? AND "
+                    "claim = ? GROUP BY outcome", (run_id, name)):
+                counts[outcome] = count
+                seconds += spent or 0.0
+            _family_counts(db, run_id, name, families)
+            record = db.execute("SELECT record FROM counterexamples WHERE run_id = ? AND "
+                                "claim = ?", (run_id, name)).fetchone()
+            certificate, note = _certificate(folder, name, run_id)
+            statement = spec.get("statement", "")
+            claims.append(ClaimData(
+                name=name, title=spec.get("title") or name, statement=statement,
+                where=spec.get("where"), expect=spec.get("expect", "holds"),
+                evidence=spec.get("evidence", "exact"), source=spec.get("source") or "",
+                families=families, counts=counts, cases=sum(counts.values()),
+                seconds=seconds, verdict=_verdict(spec.get("expect", "holds"), counts),
+                certificate=certificate, certificate_note=note,
+                counterexample=json.loads(record[0]) if record else None,
+                spectral=is_spectral(statement), squared=is_squared(statement)))
+        return RunData(str(store_path), run_id, started, finished, engine, claims)
+    finally:
+        db.close()
+
+
+# ------------------------------------------------------------------- pictures
+@dataclass
+class _Picture:
+    kind: str          # "counterexample" or "spectrum"
+    png: bytes
+    caption: str
+    file: str          # the PNG's file name beside report.md
+
+
+def counterexample_drawing(claim: ClaimData):
+    """The figure a report shows for a claim's counterexample.
+
+    The complex (for several variables, one panel each) drawn by
+    :func:`verifier.drawing.counterexample_figure`: filled triangles, edges, labelled
+    vertices, and in red the simplices the witness names.
+
+    Parameters: claim -- a :class:`ClaimData` with a counterexample.
+    Returns: a matplotlib ``Figure`` whose artists name their simplices
+    (:func:`verifier.drawing.drawn`).
+
+    >>> import tempfile
+    >>> from verifier.drawing import drawn
+    >>> folder = tempfile.mkdtemp()
+    >>> claim = collect(_example_store(folder)).claims[0]
+    >>> shown = drawn(counterexample_drawing(claim))     # the circle: 3 edges, no triangle
+    >>> sorted(shown["edge"]), shown["triangle"]
+    (['0,1', '0,2', '1,2'], [])
+
+    Notes: about 0.1 s (matplotlib).  Reference: SPEC §9.
+    """
+    from . import drawing
+
+    record = claim.counterexample
+    complexes = record.get("complexes") or {}
+    facets = next(iter(complexes.values())) if len(complexes) == 1 else complexes
+    return drawing.counterexample_figure(facets, sides=record.get("sides"),
+                                         witness=record.get("witness"),
+                                         title=f"{claim.name}: minimal counterexample")
+
+
+def _counterexample_picture(claim: ClaimData) -> _Picture | None:
+    from . import drawing
+
+    record = claim.counterexample
+    complexes = record.get("complexes") or {}
+    try:
+        png = drawing.figure_png(counterexample_drawing(claim))
+    except drawing.DrawingError as error:
+        return _Picture("counterexample", b"", f"not drawn: {error}", "")
+    caption = ("the complex" + ("es " if len(complexes) > 1 else " ")
+               + "; ".join(f"{v} = {f}" for v, f in complexes.items())
+               + (", the simplices the witness names in red" if record.get("witness") else ""))
+    return _Picture("counterexample", png, caption, f"{claim.name}-counterexample.png")
+
+
+def _spectrum_picture(claim: ClaimData, K, where: str) -> _Picture | None:
+    from . import drawing
+
+    try:
+        values, counts = drawing.spectrum_of(K, squared=claim.squared)
+        fig = drawing.draw_spectrum(values, counts, squared=claim.squared,
+                                    title=f"{claim.name}: {'L²' if claim.squared else 'L'}")
+        png = drawing.figure_png(fig)
+    except drawing.DrawingError as error:
+        return _Picture("spectrum", b"", f"spectrum not drawn: {error}", "")
+    matrix = "L² (L the connection matrix)" if claim.squared else "the connection matrix L"
+    caption = (f"eigenvalues of {matrix} of {where}, f-vector {list(K.f_vector)}: positions "
+               f"from floating point, counts exact ({counts[0]} positive, {counts[1]} "
+               f"negative, {counts[2]} zero)")
+    return _Picture("spectrum", png, caption, f"{claim.name}-spectrum.png")
+
+
+def _representative(store_path, run: RunData, claim: ClaimData):
+    """One complex a held spectral claim was tested on, for its spectrum picture: among
+    up to a dozen held one-variable cases spread over the case order, the one with most
+    simplices (at most a few hundred).  None when no case can be rebuilt."""
+    from .families import make_family
+
+    db = _open(store_path)
+    try:
+        ids = [r[0] for r in db.execute(
+            "SELECT case_id FROM cases WHERE run_id = ? AND claim = ? AND outcome = 'holds' "
+            "AND instr(case_id, ' & ') = 0 ORDER BY case_id", (run.run_id, claim.name))]
+    finally:
+        db.close()
+    if not ids:
+        return None, ""
+    step = max(1, len(ids) // _REPRESENTATIVES)
+    chosen = ids[::step][:_REPRESENTATIVES] + [ids[-1]]
+    best, best_id = None, ""
+    specs = {f.index: f.parameters for f in claim.families}
+    built: dict[int, object] = {}
+    deadline = time.monotonic() + 5.0
+    for case_id in dict.fromkeys(chosen):
+        if time.monotonic() > deadline:
+            break
+        ref, _, family_id = case_id.partition("|")
+        try:
+            if int(ref) not in built:
+                built[int(ref)] = make_family(specs[int(ref)])
+            K = built[int(ref)].get(family_id.replace("&&", "&"))
+        except Exception:  # noqa: BLE001 - the picture is optional; the report says so
+            continue
+        if len(K.simplices) <= _SPECTRUM_SIMPLICES and (
+                best is None or len(K.simplices) > len(best.simplices)):
+            best, best_id = K, family_id
+    return best, best_id
+
+
+def _pictures(store_path, run: RunData) -> dict[str, list[_Picture]]:
+    from .complex import Complex
+
+    pictures: dict[str, list[_Picture]] = {}
+    for claim in run.claims:
+        found = []
+        record = claim.counterexample
+        if record:
+            found.append(_counterexample_picture(claim))
+            if claim.spectral and len(record.get("complexes") or {}) >= 1:
+                variable, facets = next(iter(record["complexes"].items()))
+                K = Complex.from_facets(facets)
+                found.append(_spectrum_picture(claim, K, f"the counterexample {variable}"))
+        elif claim.spectral and claim.counts.get("holds"):
+            K, case_id = _representative(store_path, run, claim)
+            if K is not None:
+                found.append(_spectrum_picture(claim, K, f"tested case {case_id}"))
+        pictures[claim.name] = [p for p in found if p is not None]
+    return pictures
+
+
+# ---------------------------------------------------------------------- texts
+def _simplex_order(record: dict) -> str:
+    """For a counterexample whose sides are matrices: the simplices indexing their rows
+    and columns, in the order the matrices use (by dimension, then lexicographically)."""
+    from .complex import Complex
+
+    sides = record.get("sides") or []
+    complexes = record.get("complexes") or {}
+    if len(complexes) != 1 or not any(str(x).startswith("[[") for x in sides):
+        return ""
+    K = Complex.from_facets(next(iter(complexes.values())))
+    if len(K.simplices) > 60:
+        return ""
+    names = ["{" + ",".join(str(K.labels[v]) for v in s) + "}" for s in K.simplices]
+    return "rows and columns indexed by the simplices " + " ".join(names)
+
+
+def _value_text(text: str) -> str:
+    """An exact value for reading: a matrix one row per line with aligned columns."""
+    text = str(text)
+    if text.startswith("[[") and text.endswith("]]") and "], [" in text:
+        rows = [r.split(", ") for r in text[2:-2].split("], [")]
+        if all(len(r) == len(rows[0]) for r in rows):
+            width = [max(len(r[j]) for r in rows) for j in range(len(rows[0]))]
+            return "\n".join(("[" if i == 0 else " ") + "[" + ", ".join(
+                v.rjust(width[j]) for j, v in enumerate(r)) + "]" + ("]" if i == len(rows) - 1
+                                                                     else ",")
+                for i, r in enumerate(rows))
+    return text
+
+
+def _when(timestamp) -> str:
+    if not timestamp:
+        return "unfinished"
+    return time.strftime("%Y-%m-%d %H:%M:%S UTC", time.gmtime(timestamp))
+
+
+def _seconds(value: float) -> str:
+    return f"{value:.2f} s" if value < 100 else f"{value:.0f} s"
+
+
+def _families_line(run: RunData) -> tuple[str, str]:
+    """The families some case was drawn from, and those named but left without a case
+    (a ``max_cases`` cap stops a claim before its later families)."""
+    covered, empty = [], []
+    for claim in run.claims:
+        for f in claim.families:
+            (covered if f.cases else empty).append(f.name)
+    covered = list(dict.fromkeys(covered))
+    empty = [name for name in dict.fromkeys(empty) if name not in covered]
+    return ", ".join(covered) or "none", ", ".join(empty)
+
+
+def _caution(run: RunData) -> str:
+    cases = sum(c.cases for c in run.claims)
+    covered, empty = _families_line(run)
+    text = (f"{CAUTION}: these results cover {cases} cases drawn from the families "
+            f"{covered} (the parameters and case counts of each claim's families are "
+            "stated below), and say nothing about complexes outside them.")
+    if empty:
+        text += f" No case was drawn from {empty}."
+    return text
+
+
+# ------------------------------------------------------------------- Markdown
+def _markdown(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
+    lines = [f"# Verifier report: run {run.run_id}", "",
+             f"Store `{run.store}`; engine {run.engine}; started {_when(run.started)}, "
+             f"finished {_when(run.finished)}.", "", f"> {_caution(run)}", "",
+             "## Summary", "",
+             "| claim | expect | verdict | cases | holds | fails | outside | error | limit "
+             "| weak | seconds |",
+             "|---|---|---|--:|--:|--:|--:|--:|--:|--:|--:|"]
+    for c in run.claims:
+        lines.append(f"| {c.name} | {c.expect} | {c.verdict} | {c.cases} | " + " | ".join(
+            str(c.counts[o]) for o in _OUTCOMES) + f" | {c.seconds:.2f} |")
+    for c in run.claims:
+        lines += ["", f"## {c.name}: {_md(c.title)}", "",
+                  f"- statement: `{c.statement}`"]
+        if c.where:
+            lines.append(f"- where: `{c.where}`")
+        lines += [f"- source: {_md(c.source) or 'not given'}",
+                  f"- expected: {c.expect}; verdict: **{c.verdict}**; evidence: {c.evidence}",
+                  f"- time: {_seconds(c.seconds)} summed over {c.cases} cases", "",
+                  "| # | family | parameters | binds | cases | holds | fails | outside | "
+                  "other |", "|--:|---|---|---|--:|--:|--:|--:|--:|"]
+        for f in c.families:
+            other = sum(f.counts.get(o, 0) for o in ("error", "limit", "weak"))
+            lines.append(f"| {f.index} | {f.name} | {_md(_parameter_text(f.parameters))} | "
+                         f"{f.bind} | {f.cases} | {f.counts.get('holds', 0)} | "
+                         f"{f.counts.get('fails', 0)} | {f.counts.get('outside', 0)} | "
+                         f"{other} |")
+        lines.append("")
+        if c.certificate:
+            lines += [f"Certificate `{c.certificate}` ({c.certificate_note}); re-check it with",
+                      "", "```", recheck_command(c.certificate), "```"]
+        else:
+            lines.append(f"Certificate: {c.certificate_note}.")
+        record = c.counterexample
+        if record:
+            lines += ["", "### Minimal counterexample", ""]
+            for v, facets in (record.get("complexes") or {}).items():
+                lines.append(f"- {v} = `{facets}`")
+            lines.append(f"- from case `{record.get('case_id')}` ({record.get('family')}), "
+                         f"{len(record.get('steps') or [])} shrinking steps, "
+                         f"{'minimal' if record.get('minimal') else 'shrinking stopped early'}")
+            sides = record.get("sides") or []
+            if _simplex_order(record):
+                lines += ["", _md(_simplex_order(record)).replace("{", "`{").replace("}", "}`")
+                          + "."]
+            if len(sides) == 2:
+                lines += ["", "Left side:", "", "```", _value_text(sides[0]), "```", "",
+                          "Right side:", "", "```", _value_text(sides[1]), "```"]
+            elif sides:
+                lines += ["", "Value: `" + " ".join(map(str, sides)) + "`"]
+            if record.get("witness"):
+                lines += ["", "Witness: " + ", ".join(
+                    f"{k} = `{v}`" for k, v in record["witness"].items())]
+        for p in pictures.get(c.name, []):
+            if p.file:
+                lines += ["", f"![{p.caption}]({p.file})", "", f"*{_md(p.caption)}*"]
+            else:
+                lines += ["", f"*{_md(p.caption)}*"]
+    lines += ["", "---", "", CAUTION + ".", ""]
+    return "\n".join(lines)
+
+
+def _md(text: str) -> str:
+    return str(text).replace("|", "\\|").replace("\n", " ")
+
+
+# ----------------------------------------------------------------------- HTML
+_CSS = """
+body{font-family:Georgia,'DejaVu Serif',serif;max-width:1100px;margin:1.5em auto;padding:0 1em;
+color:#1d1d1d;background:#fff;line-height:1.45}
+h1{font-size:1.6em;margin-bottom:.2em}h2{font-size:1.3em;border-bottom:1px solid #ccc;
+margin-top:2em}h3{font-size:1.1em}
+code,pre{font-family:'DejaVu Sans Mono',Menlo,Consolas,monospace;font-size:.88em}
+pre{background:#f6f6f4;border:1px solid #e0e0dc;padding:.5em .7em;overflow-x:auto;margin:.3em 0}
+table{border-collapse:collapse;margin:.6em 0}th,td{border:1px solid #d4d4d0;padding:.2em .55em}
+th{background:#efefeb;text-align:left}td.n{text-align:right;font-variant-numeric:tabular-nums}
+.caution{border-left:4px solid #b8860b;background:#fbf6e6;padding:.6em 1em;margin:1em 0}
+.verdict-ok{color:#1b6e20;font-weight:bold}.verdict-bad{color:#a61b1b;font-weight:bold}
+.pair{display:flex;flex-wrap:wrap;gap:1.2em;align-items:flex-start}
+.pair figure{margin:0;flex:0 0 auto}.pair .values{flex:1 1 380px;min-width:300px}
+figure img{max-width:100%;height:auto;border:1px solid #e4e4e0}
+figcaption{font-size:.85em;color:#555;max-width:520px}
+.meta{color:#555;font-size:.92em}dl{display:grid;grid-template-columns:max-content 1fr;
+gap:.15em 1em}dt{font-weight:bold}dd{margin:0}
+"""
+
+_CSP = ("default-src 'none'; img-src data:; style-src 'unsafe-inline'; "
+        "base-uri 'none'; form-action 'none'")
+
+
+def _h(text) -> str:
+    return html.escape(str(text), quote=True)
+
+
+def _img(p: _Picture, alt: str) -> str:
+    from .drawing import data_uri
+
+    if not p.png:
+        return f"<p><em>{_h(p.caption)}</em></p>"
+    return (f'<figure><img src="{data_uri(p.png)}" alt="{_h(alt)}"/>'
+            f"<figcaption>{_h(p.caption)}</figcaption></figure>")
+
+
+def _html(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
+    out = ["<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8"/>',
+           f'<meta http-equiv="Content-Security-Policy" content="{_CSP}"/>',
+           '<meta name="viewport" content="width=device-width, initial-scale=1"/>',
+           f"<title>Verifier report: run {_h(run.run_id)}</title>",
+           f"<style>{_CSS}</style>"]
+    data = json.dumps(run.numbers(), sort_keys=True).replace("</", "<\\/")
+    out.append(f'<script type="application/json" id="verifier-report-data">{data}</script>')
+    out += ["</head><body>", f"<h1>Verifier report: run <code>{_h(run.run_id)}</code></h1>",
+            f'<p class="meta">Store <code>{_h(run.store)}</code>; engine {_h(run.engine)}; '
+            f"started {_h(_when(run.started))}, finished {_h(_when(run.finished))}.</p>",
+            f'<p class="caution">{_h(_caution(run))}</p>',
+            "<h2>Summary</h2>", "<table><thead><tr><th>claim</th><th>expect</th>"
+            "<th>verdict</th><th>cases</th>" + "".join(f"<th>{o}</th>" for o in _OUTCOMES)
+            + "<th>seconds</th></tr></thead><tbody>"]
+    for c in run.claims:
+        out.append(f'<tr><td><a href="#claim-{_h(c.name)}">{_h(c.name)}</a></td>'
+                   f"<td>{_h(c.expect)}</td><td>{_verdict_html(c)}</td>"
+                   f'<td class="n">{c.cases}</td>'
+                   + "".join(f'<td class="n">{c.counts[o]}</td>' for o in _OUTCOMES)
+                   + f'<td class="n">{c.seconds:.2f}</td></tr>')
+    out.append("</tbody></table>")
+    for c in run.claims:
+        out += [f'<h2 id="claim-{_h(c.name)}">{_h(c.title)}</h2>', "<dl>",
+                f"<dt>claim</dt><dd><code>{_h(c.name)}</code></dd>",
+                f"<dt>statement</dt><dd><code>{_h(c.statement)}</code></dd>"]
+        if c.where:
+            out.append(f"<dt>where</dt><dd><code>{_h(c.where)}</code></dd>")
+        out += [f"<dt>source</dt><dd>{_h(c.source or 'not given')}</dd>",
+                f"<dt>expected</dt><dd>{_h(c.expect)}</dd>",
+                f"<dt>verdict</dt><dd>{_verdict_html(c)}</dd>",
+                f"<dt>evidence</dt><dd>{_h(c.evidence)}</dd>",
+                f"<dt>time</dt><dd>{_h(_seconds(c.seconds))} summed over {c.cases} cases</dd>",
+                "<dt>certificate</dt><dd>"]
+        if c.certificate:
+            out.append(f"<code>{_h(c.certificate)}</code> ({_h(c.certificate_note)}); "
+                       f"re-check: <pre>{_h(recheck_command(c.certificate))}</pre>")
+        else:
+            out.append(_h(c.certificate_note))
+        out += ["</dd></dl>", "<table><thead><tr><th>#</th><th>family</th><th>parameters</th>"
+                "<th>binds</th><th>cases</th><th>holds</th><th>fails</th><th>outside</th>"
+                "<th>other</th></tr></thead><tbody>"]
+        for f in c.families:
+            other = sum(f.counts.get(o, 0) for o in ("error", "limit", "weak"))
+            out.append(f'<tr><td class="n">{f.index}</td><td>{_h(f.name)}</td>'
+                       f"<td><code>{_h(_parameter_text(f.parameters))}</code></td>"
+                       f"<td>{_h(f.bind)}</td><td class=\"n\">{f.cases}</td>"
+                       f'<td class="n">{f.counts.get("holds", 0)}</td>'
+                       f'<td class="n">{f.counts.get("fails", 0)}</td>'
+                       f'<td class="n">{f.counts.get("outside", 0)}</td>'
+                       f'<td class="n">{other}</td></tr>')
+        out.append("</tbody></table>")
+        shown = pictures.get(c.name, [])
+        record = c.counterexample
+        if record:
+            drawing = next((p for p in shown if p.kind == "counterexample"), None)
+            out += ["<h3>Minimal counterexample</h3>", '<div class="pair">']
+            if drawing is not None:
+                out.append(_img(drawing, f"drawing of the counterexample to {c.name}"))
+            out.append('<div class="values">')
+            for v, facets in (record.get("complexes") or {}).items():
+                out.append(f"<p><b>{_h(v)}</b> = <code>{_h(facets)}</code></p>")
+            out.append(f"<p class=\"meta\">from case <code>{_h(record.get('case_id'))}</code> "
+                       f"({_h(record.get('family'))}), {len(record.get('steps') or [])} "
+                       "shrinking steps, " + ("minimal" if record.get("minimal")
+                                              else "shrinking stopped early") + "</p>")
+            sides = record.get("sides") or []
+            if _simplex_order(record):
+                out.append(f'<p class="meta">{_h(_simplex_order(record))}</p>')
+            if len(sides) == 2:
+                out += [f"<p>left side</p><pre>{_h(_value_text(sides[0]))}</pre>",
+                        f"<p>right side</p><pre>{_h(_value_text(sides[1]))}</pre>"]
+            elif sides:
+                out.append(f"<p>value</p><pre>{_h(' '.join(map(str, sides)))}</pre>")
+            if record.get("witness"):
+                out.append("<p>witness</p><pre>" + _h("\n".join(
+                    f"{k} = {v}" for k, v in record["witness"].items())) + "</pre>")
+            out.append("</div></div>")
+        for p in shown:
+            if p.kind == "spectrum":
+                out += ["<h3>Spectrum</h3>", _img(p, f"spectrum picture for {c.name}")]
+    out += [f'<p class="caution">{_h(CAUTION)}.</p>', "</body></html>", ""]
+    return "\n".join(out)
+
+
+def _verdict_html(c: ClaimData) -> str:
+    good = c.verdict in ("holds", "fails, as expected")
+    return f'<span class="verdict-{"ok" if good else "bad"}">{_h(c.verdict)}</span>'
+
+
+# ------------------------------------------------------------------ writing
+def write_report(store_path, out_dir="reports", run_id: str | None = None,
+                 certificates_dir: str | Path = "reports/certificates") -> list[Path]:
+    """Write ``report.md`` and a self-contained ``report.html`` for one run of the store.
+
+    The report lists, per claim, its statement, source, families with the cases covered,
+    outcome counts, time, certificate and re-check command; each counterexample is drawn
+    beside its exact values; spectral claims get a picture of the spectrum of L (or L²).
+    The HTML page needs no network (pictures are ``data:`` URIs, styles inline, and its
+    Content-Security-Policy forbids any request); the Markdown file links the pictures,
+    written beside it as PNG files (one per picture).
+
+    Parameters:
+        store_path: the SQLite store of ``verifier run``.
+        out_dir: the folder to write into (created if missing).
+        run_id: the run (default: the latest).
+        certificates_dir: the folder ``verifier run`` wrote certificates to.
+
+    Returns: the paths written (report.md, report.html, then the PNG files).
+
+    Raises :class:`ReportError` when the store or run cannot be found.
+
+    >>> import tempfile
+    >>> folder = Path(tempfile.mkdtemp())
+    >>> [p.name for p in write_report(_example_store(folder), folder / "out",
+    ...                               certificates_dir=folder)]
+    ['report.md', 'report.html', 'contractible-counterexample.png']
+
+    Notes: reads only the store and the certificates folder (see the module docstring);
+    about 0.3 s per picture (matplotlib).  Reference: SPEC §9.
+    """
+    run = collect(store_path, run_id, certificates_dir)
+    pictures = _pictures(store_path, run)
+    out = Path(out_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    written = [out / "report.md", out / "report.html"]
+    written[0].write_text(_markdown(run, pictures), encoding="utf-8")
+    written[1].write_text(_html(run, pictures), encoding="utf-8")
+    for claim_pictures in pictures.values():
+        for p in claim_pictures:
+            if p.file and p.png:
+                (out / p.file).write_bytes(p.png)
+                written.append(out / p.file)
+    return written
+
+
+# ---------------------------------------------------------------------- LaTeX
+def _positions(K) -> list[tuple[float, float]]:
+    """Plane positions of K's vertices: the drawing module's deterministic layout when it
+    offers one, else the vertices on a circle in label order."""
+    from . import drawing
+
+    layout = getattr(drawing, "layout", None) or getattr(drawing, "_layout", None)
+    if layout is not None:
+        try:
+            return [(float(x), float(y)) for x, y in layout(K)]
+        except Exception:  # noqa: BLE001 - fall back to the circle below
+            pass
+    n = K.n_vertices
+    angles = [math.pi / 2 - 2 * math.pi * i / max(n, 1) for i in range(n)]
+    return [(math.cos(a), math.sin(a)) if n > 1 else (0.0, 0.0) for a in angles]
+
+
+def _tikz(facets) -> str:
+    """A TikZ picture of a complex: filled triangles, edges, labelled vertices."""
+    from .complex import Complex
+
+    K = Complex.from_facets(facets)
+    pos = _positions(K)
+    if pos:
+        xs, ys = [p[0] for p in pos], [p[1] for p in pos]
+        span = max(max(xs) - min(xs), max(ys) - min(ys), 1e-9)
+        scale = min(2.0, 5.0 / span)
+    else:
+        scale = 1.0
+    lines = [f"\\begin{{tikzpicture}}[scale={scale:.3f}]"]
+    for i, (x, y) in enumerate(pos):
+        lines.append(f"  \\coordinate (v{i}) at ({x:.4f},{y:.4f});")
+    for s in K.simplices:
+        if len(s) == 3:
+            lines.append("  \\fill[blue!25] " + " -- ".join(f"(v{v})" for v in s) + " -- cycle;")
+    for s in K.simplices:
+        if len(s) == 2:
+            lines.append(f"  \\draw[thick] (v{s[0]}) -- (v{s[1]});")
+    for i, label in enumerate(K.labels):
+        lines.append(f"  \\node[circle, draw, fill=white, inner sep=1.5pt, font=\\small] at "
+                     f"(v{i}) {{{latex_escape(label)}}};")
+    lines.append("\\end{tikzpicture}")
+    if K.dim >= 3:
+        lines.append(f"\\par\\emph{{{K.dim}-dimensional: the 2-skeleton is drawn.}}")
+    return "\n".join(lines)
+
+
+def _short(text: str, limit: int) -> str:
+    return text if len(text) <= limit else text[: limit - 3].rstrip() + "..."
+
+
+def _facets_latex(facets) -> str:
+    return r"$\{$" + ", ".join(r"$\{$" + ", ".join(latex_escape(v) for v in f) + r"$\}$"
+                               for f in facets) + r"$\}$"
+
+
+def _latex(run: RunData) -> str:
+    out = [r"\documentclass[10pt]{article}",
+           r"\usepackage{tikz}", r"\usepackage{longtable}",
+           r"\setlength{\textwidth}{16cm}\setlength{\oddsidemargin}{0cm}",
+           r"\setlength{\evensidemargin}{0cm}",
+           r"\begin{document}", "",
+           r"\section*{Results of run \texttt{" + latex_escape(run.run_id) + "}}", "",
+           latex_escape(_caution(run)), "",
+           r"{\small", r"\begin{longtable}{lp{5.6cm}rrrrr}", r"\hline",
+           r"claim & family & cases & holds & fails & outside & other \tabularnewline",
+           r"\hline", r"\endhead", r"\hline", r"\endfoot"]
+    for c in run.claims:
+        for i, f in enumerate(c.families):
+            other = sum(f.counts.get(o, 0) for o in ("error", "limit", "weak"))
+            out.append((r"\texttt{" + latex_escape(c.name) + "}" if i == 0 else "") + " & "
+                       + r"\raggedright " + latex_escape(f.name)
+                       + (r" {\footnotesize(" + latex_escape(_short(_parameter_text(
+                           f.parameters), 60)) + ")}" if _parameter_text(f.parameters) else "")
+                       + " & " + " & ".join(
+                           str(x) for x in (f.cases, f.counts.get("holds", 0),
+                                            f.counts.get("fails", 0),
+                                            f.counts.get("outside", 0), other))
+                       + r" \tabularnewline")
+        other = sum(c.counts.get(o, 0) for o in ("error", "limit", "weak"))
+        out.append(r" & \emph{all (" + latex_escape(c.verdict) + ")} & " + " & ".join(
+            str(x) for x in (c.cases, c.counts["holds"], c.counts["fails"],
+                             c.counts["outside"], other)) + r" \tabularnewline")
+        out.append(r"\hline")
+    out += [r"\end{longtable}", "}", "", r"\section*{Claims}", ""]
+    for c in run.claims:
+        out += [r"\subsection*{" + latex_escape(c.title) + "}", "",
+                r"\noindent Claim \texttt{" + latex_escape(c.name) + r"}: "
+                r"{\ttfamily\raggedright " + latex_escape(c.statement) + r"\par}"]
+        if c.where:
+            out.append(r"\noindent where {\ttfamily " + latex_escape(c.where) + r"\par}")
+        out += [r"\noindent Source: " + latex_escape(c.source or "not given") + r".\par",
+                r"\noindent Families: " + latex_escape("; ".join(
+                    f"{f.name} ({_parameter_text(f.parameters)}): {f.cases} cases"
+                    for f in c.families)) + r".\par",
+                r"\noindent Expected " + latex_escape(c.expect) + "; verdict "
+                + latex_escape(c.verdict) + f"; {c.cases} cases, "
+                + latex_escape(_seconds(c.seconds)) + r".\par"]
+        if c.certificate:
+            out.append(r"\noindent Re-check: \texttt{" + latex_escape(
+                recheck_command(c.certificate)) + r"}\par")
+        record = c.counterexample
+        if record:
+            out += ["", r"\paragraph{Minimal counterexample.}"]
+            for v, facets in (record.get("complexes") or {}).items():
+                out += [latex_escape(v) + " = " + _facets_latex(facets) + r"\par", "",
+                        r"\begin{center}", _tikz(facets), r"\end{center}"]
+            sides = record.get("sides") or []
+            if _simplex_order(record):
+                out.append(r"\noindent " + latex_escape(_simplex_order(record)) + r".\par")
+            for label, value in zip(("Left side", "Right side") if len(sides) == 2
+                                    else ("Value",), sides):
+                out += [r"\noindent " + label + r":\par", r"{\ttfamily\small"]
+                out += [r"\noindent\mbox{" + latex_escape(row).replace(" ", "~") + r"}\par"
+                        for row in _value_text(value).split("\n")]
+                out.append("}")
+            if record.get("witness"):
+                out.append(r"\noindent Witness: \texttt{" + latex_escape(", ".join(
+                    f"{k} = {v}" for k, v in record["witness"].items())) + r"}\par")
+        out.append("")
+    out += [r"\end{document}", ""]
+    return "\n".join(out)
+
+
+def write_latex(store_path, path, run_id: str | None = None,
+                certificates_dir: str | Path = "reports/certificates") -> Path:
+    """Write a LaTeX document of one run: claims × families × outcomes, and each
+    counterexample's facet list with a TikZ drawing.
+
+    It compiles with a plain LaTeX install (``article``, ``tikz`` and ``longtable``,
+    default fonts, ASCII source; on Debian the packages texlive-latex-base and
+    texlive-pictures).  Claim texts are
+    escaped with :func:`latex_escape`; vertex positions come from the drawing module's
+    layout, so the TikZ picture matches the HTML report's drawing.
+
+    Parameters:
+        store_path: the SQLite store.
+        path: the .tex file to write (its folder is created).
+        run_id: the run (default: the latest).
+
+    Returns: the path written.  Raises :class:`ReportError` as :func:`collect` does.
+
+    >>> import tempfile
+    >>> folder = Path(tempfile.mkdtemp())
+    >>> text = write_latex(_example_store(folder), folder / "r.tex").read_text()
+    >>> "begin{tikzpicture}" in text, "fill[" in text     # the circle: no filled triangle
+    (True, False)
+
+    Notes: a matrix-valued side is written one row per line.  Reference: SPEC §9.
+    """
+    run = collect(store_path, run_id, certificates_dir)
+    target = Path(path)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    target.write_text(_latex(run), encoding="utf-8")
+    return target
+
+
+# --------------------------------------------------------------- notebooks
+def _counterexample_img(facets, sides=None, witness=None) -> str:
+    from . import drawing
+    figure = drawing.counterexample_figure(facets, sides=sides, witness=witness)
+    return f'<img alt="counterexample" src="{drawing.data_uri(drawing.figure_png(figure))}">'
+
+
+def run_html(result) -> str:
+    """HTML for a run's results in a notebook: one row per claim, and each minimal
+    counterexample drawn with its exact values (``RunResult._repr_html_``)."""
+    rows = []
+    for r in result.claims:
+        counts = r.counts
+        colour = "#1a7f37" if r.meets_expectation else "#b42318"
+        rows.append(
+            f"<tr><td>{_h(r.claim.name)}</td><td style='color:{colour}'>{_h(r.verdict)}</td>"
+            f"<td>{r.cases}</td><td>{counts.get('fails', 0)}</td>"
+            f"<td>{counts.get('outside', 0)}</td><td><code>{_h(r.digest[:12])}</code></td></tr>")
+    parts = [f"<p>run <code>{_h(result.run_id)}</code> ({_h(result.engine)}, "
+             f"{result.workers} workers, {result.seconds:.1f} s)</p>",
+             "<table><tr><th>claim</th><th>verdict</th><th>cases</th><th>fails</th>"
+             "<th>outside</th><th>digest</th></tr>" + "".join(rows) + "</table>"]
+    for r in result.claims:
+        c = r.counterexample
+        if c:
+            parts.append(f"<p><b>{_h(r.claim.name)}</b>: minimal counterexample "
+                         f"<code>{_h(str(c['complexes']))}</code></p>")
+            parts.append(_counterexample_img(c["complexes"], c.get("sides"), c.get("witness")))
+    return "\n".join(parts)
+
+
+def certificate_html(data: dict) -> str:
+    """HTML for a certificate in a notebook (``Certificate._repr_html_``)."""
+    claim = data.get("claim", {})
+    lines = [f"<p><b>{_h(data.get('kind', '?'))} certificate</b> for "
+             f"<b>{_h(claim.get('name', '?'))}</b>: <code>{_h(claim.get('statement', ''))}</code></p>",
+             f"<p>{_h(data.get('cases', '?'))} cases, evidence {_h(data.get('evidence', '?'))}, "
+             f"digest <code>{_h(str(data.get('digest', ''))[:16])}</code>; re-check with "
+             f"<code>verifier check</code></p>"]
+    if data.get("kind") == "counterexample":
+        complexes = {v: c["facets"] for v, c in data.get("complexes", {}).items()}
+        lines.append(f"<p>values: <code>{_h(' vs '.join(data.get('values') or []))}</code></p>")
+        lines.append(_counterexample_img(complexes or data["complex"]["facets"],
+                                         data.get("values"), data.get("witness")))
+    return "\n".join(lines)
