@@ -77,7 +77,7 @@ def test_a_killed_worker_costs_only_a_retry(cluster, tmp_path):
 def test_resume_across_engines_after_killing_the_client(tmp_path):
     # a dask run whose client (and local cluster) is killed, resumed with local processes
     claim = tmp_path / "energy-6.toml"
-    claim.write_text(ENERGY_ON_SIX_VERTICES.format(cases=5000))
+    claim.write_text(ENERGY_ON_SIX_VERTICES.format(cases=10000))
     store = tmp_path / "s.sqlite"
     process = subprocess.Popen([sys.executable, "-m", "verifier", "run", str(claim), "--quiet",
                                 "--engine", "dask", "--workers", "2", "--store", str(store),

@@ -93,7 +93,7 @@ def test_resume_after_sigkill_gives_the_same_digest(tmp_path):
     # a run killed with SIGKILL at a seeded random moment, then resumed, ends with the same
     # case count and digest as an uninterrupted run; no case is lost or stored twice
     claim = tmp_path / "energy-6.toml"
-    claim.write_text(ENERGY_ON_SIX_VERTICES.format(cases=6000))
+    claim.write_text(ENERGY_ON_SIX_VERTICES.format(cases=12000))
     store = tmp_path / "killed.sqlite"
     certs = tmp_path / "certs"
     process = subprocess.Popen([sys.executable, "-m", "verifier", "run", str(claim), "--quiet",
