@@ -120,3 +120,20 @@ def test_search_reports_nothing_found_for_a_theorem(tmp_path):
     assert result.returncode == 0
     assert "no counterexample found (evidence, not proof)" in result.stdout
     assert not list(tmp_path.iterdir())
+
+
+def test_energy_explorer_writes_diagram_and_exact_facts(tmp_path):
+    # the path with 3 vertices: the uniform measure is not critical (row sums of g are
+    # 0, -1, 0, 1, 1, not all equal) and the T = 0 minimum of U is -1, at a point mass on
+    # the middle vertex or on either edge (hand computation, see tests/test_energy.py)
+    path = tmp_path / "path3.txt"
+    path.write_text("1 2\n2 3\n")
+    result = run("energy", str(path), "--out", str(tmp_path), "--temperatures", "2:0.1:12")
+    assert result.returncode == 0, result.stderr
+    out = " ".join(result.stdout.split())
+    assert "uniform measure critical for every T: no" in out
+    assert "T = 0: minimum of U = -1 at" in out
+    assert (tmp_path / "energy-path3.png").stat().st_size > 0
+    assert (tmp_path / "energy-path3.csv").read_text().count("\n") > 12
+    bad = run("energy", str(path), "--temperatures", "2:x")
+    assert bad.returncode == 2 and "expected A:B:N" in bad.stderr

@@ -378,6 +378,58 @@ def cmd_report(args, console: Console) -> int:
     return 0
 
 
+def _temperatures(text: str) -> list[float]:
+    """'A:B:N' -> N temperatures from A down to B (A, B > 0, N >= 2)."""
+    try:
+        a, b, n = text.split(":")
+        a, b, n = float(a), float(b), int(n)
+    except ValueError:
+        raise UserError(f"--temperatures: expected A:B:N (e.g. 2:0.05:40), got {text!r}") from None
+    if not (a > 0 and b > 0 and n >= 2):
+        raise UserError(f"--temperatures: need A > 0, B > 0 and N >= 2, got {text!r}")
+    high, low = max(a, b), min(a, b)
+    return [high + (low - high) * i / (n - 1) for i in range(n)]
+
+
+def cmd_energy(args, console: Console) -> int:
+    from . import energy
+    from .invariants import green
+
+    name, K = load_complex(args.complex)
+    temperatures = _temperatures(args.temperatures)
+    if len(K.simplices) > 400:
+        raise UserError(f"energy: {name} has {len(K.simplices)} simplices; the explorer "
+                        "handles at most 400")
+    V = green(K)
+    out = Path(args.out)
+    stem = out / f"energy-{Path(name).stem}"
+    try:
+        branches = energy.sweep(V, temperatures, seed=args.seed)
+        diagram = energy.bifurcation_diagram(branches, f"{stem}.{args.format}",
+                                             title=f"{name}: F_T on the probability simplex")
+        table = energy.branches_csv(branches, f"{stem}.csv")
+    except energy.EnergyError as error:
+        raise UserError(f"energy: {error}") from None
+    console.print(f"[bold]{escape(name)}[/bold]: free energy F_T(p) = U(p) - T S(p), U from the "
+                  f"Green function ({len(K.simplices)} simplices)", highlight=False)
+    critical = energy.uniform_is_critical(V)
+    console.print(f"  uniform measure critical for every T: {'yes' if critical else 'no'} "
+                  "[dim](exact, from the row sums of g)[/dim]", highlight=False)
+    if len(K.simplices) <= 12:
+        zero = energy.minimisers_at_zero_temperature(V)
+        names = [list(K.label_of(s)) for s in K.simplices]
+        shown = "; ".join(", ".join(f"{names[i]}: {x}" for i, x in enumerate(p) if x)
+                          for p in zero.minimisers)
+        console.print(f"  T = 0: minimum of U = {zero.value} at {escape(shown)} "
+                      "[dim](exact, over all faces of the simplex)[/dim]", highlight=False)
+    for b in energy.bifurcations(branches):
+        console.print(f"  bifurcation near T = {b.T:.4g} ({escape(b.what)}: {escape(b.detail)}) "
+                      "[dim](floating point)[/dim]", highlight=False)
+    console.print(f"diagram: {escape(str(diagram))}; branches: {escape(str(table))} "
+                  "[dim](floating point)[/dim]", highlight=False, soft_wrap=True)
+    return 0
+
+
 def cmd_functions(args, console: Console) -> int:
     from .claims.functions import QUANTIFIERS, TABLE
     console.print("[bold]Functions of the claim language[/bold] (exact; sources beside each)\n")
@@ -484,6 +536,15 @@ def build_parser() -> argparse.ArgumentParser:
                         help="folder holding the run's certificates")
     report.set_defaults(handler=cmd_report)
 
+    explore = commands.add_parser("energy", help="explore the free energy of a complex")
+    explore.add_argument("complex", metavar="COMPLEX", help="catalog name or facet file")
+    explore.add_argument("--temperatures", default="2:0.05:40", metavar="A:B:N",
+                         help="N temperatures from A down to B (default 2:0.05:40)")
+    explore.add_argument("--out", default="reports", help="folder for the diagram and CSV")
+    explore.add_argument("--format", choices=["png", "svg"], default="png")
+    explore.add_argument("--seed", type=int, default=0, help="seed of the random starts")
+    explore.set_defaults(handler=cmd_energy)
+
     functions = commands.add_parser("functions", help="list the claim language's functions")
     functions.set_defaults(handler=cmd_functions)
     families = commands.add_parser("families", help="list the families and their parameters")
@@ -507,15 +568,15 @@ def main(argv: list[str] | None = None) -> int:
     if not getattr(args, "handler", None):
         parser.print_help()
         return 2
-    console = Console()
+    console = Console(emoji=False)
     try:
         return args.handler(args, console)
     except UserError as error:
-        Console(stderr=True).print(f"[red]error:[/red] {escape(str(error))}",
+        Console(stderr=True, emoji=False).print(f"[red]error:[/red] {escape(str(error))}",
                                    highlight=False, soft_wrap=True)
         return 2
     except KeyboardInterrupt:
-        Console(stderr=True).print("interrupted")
+        Console(stderr=True, emoji=False).print("interrupted")
         return 130
 
 
