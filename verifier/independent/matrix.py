@@ -375,25 +375,13 @@ def rank_mod(A: Matrix, p: int) -> int:
     >>> rank_mod(A, 2), rank_mod(A, 3)
     (2, 3)
 
-    Notes: Gaussian elimination modulo p, inverses by Fermat's little theorem.
+    Notes: Gaussian elimination modulo p (:func:`verifier.independent.compute.rank_mod_p`).
     Reference: common practice (Gaussian elimination over a finite field), no source.
     """
+    from .compute import rank_mod_p
     if not A.is_integer():
         raise MatrixError("rank over Z/p needs an integer matrix")
-    pivots: dict[int, dict[int, int]] = {}
-    for row in A.sparse_rows():
-        row = {j: x % p for j, x in row.items() if x % p}
-        while row:
-            c = min(row)
-            if c not in pivots:
-                scale = pow(row[c], p - 2, p)
-                pivots[c] = {j: x * scale % p for j, x in row.items()}
-                break
-            factor = row[c]
-            for j, x in pivots[c].items():
-                row[j] = (row.get(j, 0) - factor * x) % p
-            row = {j: x for j, x in row.items() if x}
-    return len(pivots)
+    return rank_mod_p(A.sparse_rows(), p)
 
 
 def det(A: Matrix):
