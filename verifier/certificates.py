@@ -14,7 +14,10 @@ A certificate is canonical JSON (sorted keys) with a versioned schema and, under
 (:mod:`verifier.independent.claims`: plain Python integers and fractions, in a
 subprocess that never loads python-flint): it recomputes the hash, re-evaluates counterexamples in full,
 re-plans the cases of a pass certificate, recomputes its digest and re-evaluates every
-case (or a seeded sample of ``sample`` cases).
+case (or a seeded sample of ``sample`` cases).  Certified values (evidence ``certified``,
+SPEC §6) are recorded with their enclosures and precision under ``"certified"``; the
+independent backend recomputes them with another method at another precision, and each
+recorded enclosure must intersect its recomputation.
 """
 
 from __future__ import annotations
@@ -96,9 +99,18 @@ def certificate_of(result, run) -> dict:
                     shrinking={"steps": c["steps"], "evaluations": c["evaluations"],
                                "minimal": c["minimal"]})
         body["evidence"] = c["evidence"]
+        if c.get("certified"):
+            body["certified"] = {"note": _CERTIFIED_NOTE, "values": c["certified"]}
     else:
         body["kind"] = "pass"
+        if result.certified:
+            body["certified"] = {"note": _CERTIFIED_NOTE, "cases": result.certified}
     return seal(body)
+
+
+_CERTIFIED_NOTE = ("enclosures with exact decimal ends, rounded outward, and the precision "
+                   "(bits) that produced them; a re-check recomputes them by another method at "
+                   "another precision and requires every pair of enclosures to intersect")
 
 
 def _atomic_write(path: Path, text: str):
@@ -118,7 +130,7 @@ def write_certificates(run, folder: str | Path) -> list[Path]:
     ``<folder>/<claim>.json``; claims with unsettled cases (errors, limits) get none."""
     written = []
     for result in run.claims:
-        if result.verdict == "incomplete":
+        if result.verdict in ("incomplete", "undecided"):
             continue
         path = Path(folder) / f"{result.claim.name}.json"
         cert = certificate_of(result, run)
@@ -223,9 +235,11 @@ def _check_counterexample(data: dict, result: CheckResult, timeout) -> CheckResu
         result.reason = "mismatch: the counterexample is outside the claim's 'where' domain"
     elif answer.get("holds"):
         result.reason = "mismatch: the statement holds on the certified counterexample"
-    elif data.get("values") and answer.get("sides") != data["values"]:
+    elif data.get("values") and not _same_values(answer.get("sides") or [], data["values"]):
         result.reason = (f"mismatch: recomputed values {answer.get('sides')} differ from the "
                          f"certified {data['values']}")
+    elif (problem := _certified_mismatch(data.get("certified", {}).get("values"), answer)):
+        result.reason = f"mismatch: {problem}"
     elif answer.get("outcome", "fails") != "fails":
         result.reason = f"mismatch: the independent backend says {answer.get('outcome')}"
     elif original and answers[1].get("outcome", "fails") != "fails":
@@ -234,6 +248,21 @@ def _check_counterexample(data: dict, result: CheckResult, timeout) -> CheckResu
         result.verified = True
         result.reason = "verified: the statement fails on the counterexample (independent backend)"
     return result
+
+
+def _same_values(recomputed: list, recorded: list) -> bool:
+    """Exact texts must be equal; certified enclosures must intersect."""
+    from .claims.enclosure import consistent
+    return len(recomputed) == len(recorded) and all(
+        consistent(str(a), str(b)) for a, b in zip(recomputed, recorded))
+
+
+def _certified_mismatch(recorded, answer: dict) -> str | None:
+    """Compare the certified values a certificate recorded with the independent ones."""
+    if not recorded:
+        return None
+    from .claims.enclosure import consistent_values
+    return consistent_values(recorded, answer.get("certified") or [])
 
 
 class _Plan:
@@ -273,6 +302,8 @@ def _check_pass(data: dict, result: CheckResult, sample, seed, timeout) -> Check
              for cid in chosen]
     answers = recheck(tasks, timeout=timeout) if tasks else []
     result.cases_checked = len(tasks)
+    recorded = {entry.get("case_id"): entry.get("values")
+                for entry in data.get("certified", {}).get("cases", [])}
     for cid, answer in zip(chosen, answers):
         if answer.get("holds") is None and not answer.get("outside"):
             result.reason = (f"could not re-evaluate case {cid}: "
@@ -280,6 +311,9 @@ def _check_pass(data: dict, result: CheckResult, sample, seed, timeout) -> Check
             return result
         if not (answer.get("holds") or answer.get("outside")):
             result.reason = f"mismatch: the statement fails on case {cid} (independent backend)"
+            return result
+        if (problem := _certified_mismatch(recorded.get(cid), answer)):
+            result.reason = f"mismatch on case {cid}: {problem}"
             return result
     scope = "every case" if len(chosen) == len(ids) else f"a sample of {len(chosen)} cases"
     result.verified = True

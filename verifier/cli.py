@@ -30,6 +30,7 @@ from rich.table import Table
 
 from . import __version__
 from .complex import Complex, ComplexError
+from .run.store import UNSETTLED
 
 __all__ = ["main", "load_complex", "UserError"]
 
@@ -227,7 +228,7 @@ def cmd_run(args, console: Console) -> int:
     for column in ("cases", "fails", "outside", "other", "s"):
         table.add_column(column, justify="right", no_wrap=True)
     for r in result.claims:
-        other = r.counts["error"] + r.counts["limit"] + r.counts["weak"]
+        other = sum(r.counts[o] for o in UNSETTLED)
         mark = "[green]ok[/green]" if r.meets_expectation else "[red]NOT OK[/red]"
         verdict = r.verdict.split(",")[0] + ("*" if r.claim.expect == "fails" else "")
         table.add_row(r.claim.name, f"{verdict} {mark}", str(r.cases), str(r.counts["fails"]),
@@ -348,7 +349,7 @@ def cmd_summary(args, console: Console) -> int:
     for claim in request.get("claims", []):
         entry = table_data.get(claim["name"], {"counts": {}, "cases": 0, "seconds": 0.0})
         counts = entry["counts"]
-        other = sum(counts.get(o, 0) for o in ("error", "limit", "weak"))
+        other = sum(counts.get(o, 0) for o in UNSETTLED)
         name = claim["name"] + ("*" if claim.get("expect") == "fails" else "")
         table.add_row(name, str(entry["cases"]),
                       str(counts.get("holds", 0)), str(counts.get("fails", 0)),

@@ -46,6 +46,8 @@ import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .run.store import OUTCOMES, UNSETTLED, verdict_of
+
 __all__ = ["ReportError", "RunData", "ClaimData", "FamilyData", "CAUTION", "collect",
            "write_report", "write_latex", "counterexample_drawing", "is_spectral", "is_squared",
            "latex_escape", "recheck_command"]
@@ -56,7 +58,7 @@ SPECTRAL_FUNCTIONS = ("connection", "green", "charpoly", "signature", "positive"
                       "multiplicity", "zeta")
 _SPECTRAL = re.compile(r"\b(" + "|".join(SPECTRAL_FUNCTIONS) + r")\s*\(")
 _SQUARED = re.compile(r"\bconnection\s*\(\s*\w+\s*\)\s*\*\*\s*2\b")
-_OUTCOMES = ("holds", "fails", "outside", "error", "limit", "weak")
+_OUTCOMES = OUTCOMES
 _SPECTRUM_SIMPLICES = 150          # largest complex whose spectrum stands for a held claim
 _REPRESENTATIVES = 12              # held cases tried when choosing that complex
 
@@ -194,6 +196,15 @@ _LATEX_ACCENTS = {"\u0301": "'", "\u0300": "`", "\u0302": "^", "\u0308": '"', "\
                   "\u0307": ".", "\u030a": "r"}
 
 
+CERTIFIED_CAPTION = ("Certified values met on the way (enclosures proved by ball arithmetic, "
+                     "decimals rounded outward, with the precision used)")
+
+
+def _certified_row(entry: dict) -> str:
+    """One certified value: where in the statement, which function, its enclosure."""
+    return f"{entry.get('at', '?')}  {entry.get('function', '?')}: {entry.get('value', '')}"
+
+
 def latex_escape(text) -> str:
     r"""Text made safe for LaTeX: special characters escaped, other characters spelled out
     in ASCII, so the result compiles with LaTeX's default fonts and nothing else.
@@ -289,12 +300,7 @@ def _refs(case_id: str) -> list[int]:
 
 def _verdict(expect: str, counts: dict) -> str:
     """What a reader is told about a claim, from its counts and its expectation."""
-    failing = counts.get("fails", 0) > 0
-    unsettled = sum(counts.get(o, 0) for o in ("error", "limit", "weak"))
-    if expect == "fails":
-        return ("fails, as expected" if failing else
-                "incomplete" if unsettled else "holds, expected to fail")
-    return "fails" if failing else ("incomplete" if unsettled else "holds")
+    return verdict_of(counts, expect)[1]
 
 
 # ------------------------------------------------------------------- collecting
@@ -658,9 +664,8 @@ def _markdown(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
              f"Store `{run.store}`; engine {run.engine}; started {_when(run.started)}, "
              f"finished {_when(run.finished)}.", "", f"> {_caution(run)}", "",
              "## Summary", "",
-             "| claim | expect | verdict | cases | holds | fails | outside | error | limit "
-             "| weak | seconds |",
-             "|---|---|---|--:|--:|--:|--:|--:|--:|--:|--:|"]
+             "| claim | expect | verdict | cases | " + " | ".join(_OUTCOMES) + " | seconds |",
+             "|---|---|---|--:|" + "--:|" * len(_OUTCOMES) + "--:|"]
     for c in run.claims:
         lines.append(f"| {c.name} | {c.expect} | {c.verdict} | {c.cases} | " + " | ".join(
             str(c.counts[o]) for o in _OUTCOMES) + f" | {c.seconds:.2f} |")
@@ -675,7 +680,7 @@ def _markdown(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
                   "| # | family | parameters | binds | cases | holds | fails | outside | "
                   "other |", "|--:|---|---|---|--:|--:|--:|--:|--:|"]
         for f in c.families:
-            other = sum(f.counts.get(o, 0) for o in ("error", "limit", "weak"))
+            other = sum(f.counts.get(o, 0) for o in UNSETTLED)
             lines.append(f"| {f.index} | {f.name} | {_md(_parameter_text(f.parameters))} | "
                          f"{f.bind} | {f.cases} | {f.counts.get('holds', 0)} | "
                          f"{f.counts.get('fails', 0)} | {f.counts.get('outside', 0)} | "
@@ -706,6 +711,9 @@ def _markdown(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
             if record.get("witness"):
                 lines += ["", "Witness: " + ", ".join(
                     f"{k} = `{v}`" for k, v in record["witness"].items())]
+            if record.get("certified"):
+                lines += ["", CERTIFIED_CAPTION + ":", "", "```"] + [
+                    _certified_row(v) for v in record["certified"]] + ["```"]
         for p in pictures.get(c.name, []):
             if p.file:
                 lines += ["", f"![{p.caption}]({p.file})", "", f"*{_md(p.caption)}*"]
@@ -799,7 +807,7 @@ def _html(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
                 "<th>binds</th><th>cases</th><th>holds</th><th>fails</th><th>outside</th>"
                 "<th>other</th></tr></thead><tbody>"]
         for f in c.families:
-            other = sum(f.counts.get(o, 0) for o in ("error", "limit", "weak"))
+            other = sum(f.counts.get(o, 0) for o in UNSETTLED)
             out.append(f'<tr><td class="n">{f.index}</td><td>{_h(f.name)}</td>'
                        f"<td><code>{_h(_parameter_text(f.parameters))}</code></td>"
                        f"<td>{_h(f.bind)}</td><td class=\"n\">{f.cases}</td>"
@@ -833,6 +841,9 @@ def _html(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
             if record.get("witness"):
                 out.append("<p>witness</p><pre>" + _h("\n".join(
                     f"{k} = {v}" for k, v in record["witness"].items())) + "</pre>")
+            if record.get("certified"):
+                out.append(f"<p>{_h(CERTIFIED_CAPTION.lower())}</p><pre>" + _h("\n".join(
+                    _certified_row(v) for v in record["certified"])) + "</pre>")
             out.append("</div></div>")
         for p in shown:
             if p.kind == "spectrum":
@@ -961,7 +972,7 @@ def _latex(run: RunData) -> str:
            r"\hline", r"\endhead", r"\hline", r"\endfoot"]
     for c in run.claims:
         for i, f in enumerate(c.families):
-            other = sum(f.counts.get(o, 0) for o in ("error", "limit", "weak"))
+            other = sum(f.counts.get(o, 0) for o in UNSETTLED)
             out.append((r"\texttt{" + latex_escape(c.name) + "}" if i == 0 else "") + " & "
                        + r"\raggedright " + latex_escape(f.name)
                        + (r" {\footnotesize(" + latex_escape(_short(_parameter_text(
@@ -971,7 +982,7 @@ def _latex(run: RunData) -> str:
                                             f.counts.get("fails", 0),
                                             f.counts.get("outside", 0), other))
                        + r" \tabularnewline")
-        other = sum(c.counts.get(o, 0) for o in ("error", "limit", "weak"))
+        other = sum(c.counts.get(o, 0) for o in UNSETTLED)
         out.append(r" & \emph{all (" + latex_escape(c.verdict) + ")} & " + " & ".join(
             str(x) for x in (c.cases, c.counts["holds"], c.counts["fails"],
                              c.counts["outside"], other)) + r" \tabularnewline")
@@ -1011,6 +1022,11 @@ def _latex(run: RunData) -> str:
             if record.get("witness"):
                 out.append(r"\noindent Witness: \texttt{" + latex_escape(", ".join(
                     f"{k} = {v}" for k, v in record["witness"].items())) + r"}\par")
+            if record.get("certified"):
+                out += [r"\noindent " + CERTIFIED_CAPTION + r":\par", r"{\ttfamily\small"]
+                out += [r"\noindent\mbox{" + latex_escape(_certified_row(v)).replace(" ", "~")
+                        + r"}\par" for v in record["certified"]]
+                out.append("}")
         out.append("")
     out += [r"\end{document}", ""]
     return "\n".join(out)

@@ -9,10 +9,18 @@ The independent backend (:mod:`verifier.independent.claims`) provides the same n
 
 from __future__ import annotations
 
-from .. import exact, invariants as inv, operations as ops
+from fractions import Fraction
+
+from .. import energy, exact, invariants as inv, operations as ops
 from ..complex import Complex
-from .errors import EvaluationError
+from .enclosure import (Count, Enclosure, enclosure_list, free_energy_value,
+                        imaginary_part, real_part, probability_vector,
+                        rounded_points, zeta_value)
+from .errors import EvaluationError, Undecided
 from .values import Indexed
+
+BITS = 128       # the starting precision of certified values (the independent backend
+                 # starts elsewhere, so a re-check never repeats the same computation)
 
 
 def _simplex(K: Complex, x) -> tuple[int, ...]:
@@ -78,6 +86,8 @@ def _transpose(M: Indexed) -> Indexed:
 def _abs(x):
     if isinstance(x, Indexed):
         return Indexed(x.matrix.entrywise_abs(), x.rows, x.cols)
+    if isinstance(x, Enclosure):
+        return x.modulus()
     return abs(x)
 
 
@@ -136,10 +146,86 @@ def _multiplicity(M: Indexed, value) -> int:
     return exact.multiplicity(M.matrix, value)
 
 
-def _zeta(M: Indexed, s: int):
-    if not isinstance(s, int):
-        raise EvaluationError(f"zeta is evaluated at integers only, got {s}")
-    return inv.zeta(M.matrix, s)
+def _zeta(M: Indexed, s, t=0):
+    if t == 0 and isinstance(s, int):
+        return inv.zeta(M.matrix, s)
+    poly = _spectral_poly(M, "zeta")
+    if poly.coeffs[0] == 0:
+        raise EvaluationError("zeta: matrix is singular (0 is an eigenvalue)")
+    return zeta_value(poly.coeffs, s, t, _certain(lambda b: exact.zeta_ball(poly, (s, t), b)),
+                      BITS)
+
+
+_POLYS: dict = {}     # id(matrix) -> (matrix, characteristic polynomial), a few recent ones
+
+
+def _spectral_poly(M: Indexed, name: str):
+    """The exact characteristic polynomial of a symmetric integer matrix (cached)."""
+    matrix = M.matrix
+    hit = _POLYS.get(id(matrix))
+    if hit is not None and hit[0] is matrix:
+        return hit[1]
+    if not matrix.is_square:
+        raise EvaluationError(f"{name} needs a square matrix, got {matrix.shape[0]}x"
+                              f"{matrix.shape[1]}")
+    if not matrix.is_integer() or not matrix.is_symmetric():
+        raise EvaluationError(f"{name} needs a symmetric integer matrix (real eigenvalues)")
+    poly = exact.charpoly(matrix)
+    if len(_POLYS) >= 8:
+        _POLYS.pop(next(iter(_POLYS)))
+    _POLYS[id(matrix)] = (matrix, poly)
+    return poly
+
+
+def _certain(compute):
+    """``compute`` with the exact layer's "undecided" turned into the language's."""
+    def run(*args, **options):
+        try:
+            return compute(*args, **options)
+        except exact.Undecided as error:
+            raise Undecided(str(error)) from None
+    return run
+
+
+def _eigenvalue_enclosures(M: Indexed):
+    poly = _spectral_poly(M, "eigenvalue_enclosures")
+    return enclosure_list(lambda bits: exact.eigenvalue_enclosures(poly, bits), BITS)
+
+
+def _zeros_in_box(M: Indexed, re_lo, re_hi, im_lo, im_hi):
+    poly, details = _spectral_poly(M, "zeros_in_box"), {}
+    n = _certain(exact.zeros_in_box)(poly, re_lo, re_hi, im_lo, im_hi, BITS, details=details)
+    return Count(n, details["bits"])
+
+
+def _zeros_on_axis(M: Indexed, t_lo, t_hi):
+    poly, details = _spectral_poly(M, "zeros_on_axis"), {}
+    n = _certain(exact.zeros_on_axis)(poly, t_lo, t_hi, BITS, details=details)
+    return Count(n, details["bits"])
+
+
+def _interaction(V) -> list[list]:
+    """The rows of an interaction matrix: a symmetric matrix, or a complex's Green function."""
+    matrix = inv.green(V) if isinstance(V, Complex) else V.matrix
+    rows = matrix.rows()
+    if len(rows) != matrix.shape[1] or not matrix.is_symmetric():
+        raise EvaluationError("the interaction matrix must be square and symmetric")
+    return rows
+
+
+def _free_energy(V, p, T):
+    rows = _interaction(V)
+    p = probability_vector(p, len(rows))
+    U = sum(p[x] * rows[x][y] * p[y] for x in range(len(p)) if p[x]
+            for y in range(len(p)) if p[y])
+    return free_energy_value(Fraction(U), p, T, lambda bits: exact.entropy_ball(p, bits), BITS)
+
+
+def _critical_points(V, T):
+    if Fraction(T) <= 0:
+        raise EvaluationError(f"critical_points needs a temperature T > 0, got {T}")
+    found = energy.critical_points(_interaction(V), Fraction(T))
+    return rounded_points(c.p for c in found)
 
 
 def _star(K: Complex, x) -> frozenset:
@@ -267,4 +353,8 @@ IMPLEMENTATIONS = {
     "boundary": ops.boundary, "interior": _interior, "refine": _refine, "join": ops.join,
     "cone": ops.cone, "suspension": ops.suspension, "product": ops.product,
     "skeleton": _skeleton, "union": _union,
+    "eigenvalue_enclosures": _eigenvalue_enclosures, "zeros_in_box": _zeros_in_box,
+    "zeros_on_axis": _zeros_on_axis, "re": real_part, "im": imaginary_part,
+    "free_energy": _free_energy,
+    "critical_points": _critical_points,
 }

@@ -7,7 +7,7 @@ Every error a user can cause is a ``ClaimError``; the command line prints it as 
 from __future__ import annotations
 
 __all__ = ["ClaimError", "ClaimFileError", "ExpressionError", "EvaluationError",
-           "LimitExceeded", "Place"]
+           "LimitExceeded", "Undecided", "Place"]
 
 
 class Place:
@@ -69,3 +69,10 @@ class LimitExceeded(EvaluationError):
     def __init__(self, message: str, limit: str, place: Place | None = None):
         super().__init__(message, place)
         self.limit = limit
+
+
+class Undecided(EvaluationError):
+    """A certified comparison that the maximum precision cannot settle (SPEC §6).
+
+    The case is recorded as ``undecided``: never as a pass or a fail.
+    """

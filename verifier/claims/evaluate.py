@@ -19,7 +19,8 @@ import time
 from dataclasses import dataclass, field
 from fractions import Fraction
 
-from .errors import ClaimError, EvaluationError, LimitExceeded
+from .enclosure import Count, Enclosure, decide_equal, decide_sign
+from .errors import ClaimError, EvaluationError, LimitExceeded, Undecided
 from .expression import Node
 from .values import Indexed, describe_value
 
@@ -46,6 +47,7 @@ class Context:
     deadline: float | None = None
     evidence: str = "exact"
     error_bound: Fraction | None = None
+    certified: list = field(default_factory=list)   # certified values met, for certificates
 
     def __post_init__(self):
         if self.table is None:
@@ -71,6 +73,15 @@ class Context:
         if error_bound is not None:
             self.error_bound = (self.error_bound or 0) + Fraction(error_bound)
 
+    MAX_RECORDED = 64
+
+    def note_certified(self, node: Node, value):
+        """Keep the text (with its precision) of a certified value, for the certificate."""
+        if len(self.certified) < self.MAX_RECORDED:
+            text = value.text() if isinstance(value, Count) else describe_value(value)
+            self.certified.append({"at": f"{node.line}:{node.column}",
+                                   "function": node.function.name, "value": text})
+
 
 # ---------------------------------------------------------------- arithmetic
 def _is_number(x) -> bool:
@@ -93,6 +104,11 @@ def _power(base, exponent, ctx: Context, node: Node):
     if not isinstance(exponent, int) or isinstance(exponent, bool):
         raise EvaluationError(f"exponent must be an integer, got {describe_value(exponent)}",
                               node.place())
+    if isinstance(base, Enclosure):
+        if abs(exponent) > limits.max_matrix_power:
+            raise LimitExceeded(f"power {exponent} of a certified number exceeds the limit "
+                                f"{limits.max_matrix_power}", "max_matrix_power", node.place())
+        return base ** exponent
     if isinstance(base, Indexed):
         if abs(exponent) > limits.max_matrix_power:
             raise LimitExceeded(f"matrix power {exponent} exceeds the limit "
@@ -131,6 +147,13 @@ def _binop(op, a, b, ctx, node):
         if isinstance(a, frozenset) and isinstance(b, frozenset):
             return a & b if op == "&" else a | b
         raise EvaluationError(f"'{op}' combines two sets of simplices", node.place())
+    if isinstance(a, Enclosure) or isinstance(b, Enclosure):
+        if op in ("+", "-", "*", "/") and all(_is_number(x) or isinstance(x, Enclosure)
+                                              for x in (a, b)):
+            return {"+": lambda: a + b, "-": lambda: a - b, "*": lambda: a * b,
+                    "/": lambda: a / b}[op]()
+        raise EvaluationError(f"operator '{op}' does not apply to {_kind(a)} and {_kind(b)}",
+                              node.place())
     if op in ("%", "//"):
         if not all(isinstance(x, int) and not isinstance(x, bool) for x in (a, b)):
             raise EvaluationError(f"'{op}' needs integers", node.place())
@@ -186,14 +209,38 @@ def _kind(x) -> str:
 
 
 def _equal(a, b) -> bool:
+    if isinstance(a, Enclosure) or isinstance(b, Enclosure):
+        if all(_is_number(x) or isinstance(x, Enclosure) for x in (a, b)):
+            return decide_equal(a, b)
+        return False
     if isinstance(a, Indexed) and isinstance(b, Indexed):
         return a.matrix == b.matrix
     pa, pb = _unwrap_poly(a), _unwrap_poly(b)
     if hasattr(pa, "coeffs") or hasattr(pb, "coeffs"):
         return pa == pb
     if isinstance(a, tuple) and isinstance(b, tuple):
-        return len(a) == len(b) and all(_equal(x, y) for x, y in zip(a, b))
+        return len(a) == len(b) and _all_of(lambda pair: _equal(*pair), zip(a, b))
     return a == b
+
+
+def _all_of(test, items) -> bool:
+    """Kleene conjunction: False if some item is certainly false, else True if every item
+    is certainly true, else the first :class:`Undecided` is raised."""
+    pending = None
+    for item in items:
+        try:
+            if not test(item):
+                return False
+        except Undecided as error:
+            pending = pending or error
+    if pending is not None:
+        raise pending
+    return True
+
+
+def _any_of(test, items) -> bool:
+    """Kleene disjunction (see :func:`_all_of`)."""
+    return not _all_of(lambda item: not test(item), items)
 
 
 def _compare(op, a, b, node):
@@ -215,6 +262,10 @@ def _compare(op, a, b, node):
         else:
             found = any(_equal(key, x) for x in b)
         return found if op == "in" else not found
+    if isinstance(a, Enclosure) or isinstance(b, Enclosure):
+        if all(_is_number(x) or isinstance(x, Enclosure) for x in (a, b)):
+            sign = decide_sign(a - b)
+            return {"<": sign < 0, "<=": sign <= 0, ">": sign > 0, ">=": sign >= 0}[op]
     if not (_is_number(a) and _is_number(b)):
         raise EvaluationError(f"'{op}' compares numbers, got {_kind(a)} and {_kind(b)}",
                               node.place())
@@ -248,12 +299,20 @@ def evaluate(node: Node, env: dict, ctx: Context):
         try:
             if node.function.name == "is_reciprocal":
                 return implementation(*args, ctx=ctx)
-            return implementation(*args)
+            result = implementation(*args)
+            if node.function.evidence != "exact" and (
+                    node.function.returns != "number|ball" or isinstance(result, Enclosure)):
+                ctx.note_evidence(node.function.evidence)
+                if node.function.evidence == "certified":
+                    ctx.note_certified(node, result)
+            return result
         except ClaimError as error:
             raise error.at(node.place()) if error.place is None else error
         except (ArithmeticError, ValueError, KeyError, TypeError) as error:
-            raise EvaluationError(f"{node.function.name}: {_message(error)}",
-                                  node.place()) from None
+            text = _message(error)
+            if not text.startswith(f"{node.function.name}:"):
+                text = f"{node.function.name}: {text}"
+            raise EvaluationError(text, node.place()) from None
     if kind == "binop":
         a = evaluate(node.args[0], env, ctx)
         b = evaluate(node.args[1], env, ctx)
@@ -266,19 +325,19 @@ def evaluate(node: Node, env: dict, ctx: Context):
             return value
         if isinstance(value, Indexed):
             return Indexed(-value.matrix, value.rows, value.cols)
+        if isinstance(value, Enclosure):
+            return -value
         return -_unwrap_poly(value) if not _is_number(value) else -value
     if kind == "boolop":
-        if node.value == "and":
-            return all(evaluate(a, env, ctx) for a in node.args)
-        return any(evaluate(a, env, ctx) for a in node.args)
+        test = lambda a: evaluate(a, env, ctx)  # noqa: E731
+        return (_all_of if node.value == "and" else _any_of)(test, node.args)
     if kind == "compare":
-        left = evaluate(node.args[0], env, ctx)
+        values = [evaluate(node.args[0], env, ctx)]
+        links = []
         for op, right_node in zip(node.value, node.args[1:]):
-            right = evaluate(right_node, env, ctx)
-            if not _compare(op, left, right, node):
-                return False
-            left = right
-        return True
+            values.append(evaluate(right_node, env, ctx))
+            links.append((op, values[-2], values[-1]))
+        return _all_of(lambda link: _compare(link[0], link[1], link[2], node), links)
     if kind == "ifelse":
         return evaluate(node.args[1] if evaluate(node.args[0], env, ctx) else node.args[2],
                         env, ctx)
@@ -344,18 +403,21 @@ def _quantifier(node: Node, env: dict, ctx: Context):
             total += item
         return _normal(total)
     element = node.args[0]
-    if name == "all":
+    if name in ("all", "any"):
+        wanted = name == "any"           # the value that decides the quantifier
+        pending = None
         for inner in _bindings(node.loops, env, ctx):
-            if not evaluate(element, inner, ctx):
+            try:
+                value = bool(evaluate(element, inner, ctx))
+            except Undecided as error:   # Kleene logic: a later item may still decide
+                pending = pending or error
+                continue
+            if value == wanted:
                 ctx_witness(ctx, inner, env)
-                return False
-        return True
-    if name == "any":
-        for inner in _bindings(node.loops, env, ctx):
-            if evaluate(element, inner, ctx):
-                ctx_witness(ctx, inner, env)
-                return True
-        return False
+                return wanted
+        if pending is not None:
+            raise pending
+        return not wanted
     if name == "sum":
         total = 0
         for inner in _bindings(node.loops, env, ctx):
@@ -397,6 +459,7 @@ class Outcome:
     witness: dict | None              # the binding that decided a quantifier, as texts
     evidence: str
     error_bound: Fraction | None
+    certified: list = field(default_factory=list)   # certified values with their precision
 
 
 def evaluate_claim(statement: Node, env: dict, ctx: Context | None = None) -> Outcome:
@@ -408,8 +471,12 @@ def evaluate_claim(statement: Node, env: dict, ctx: Context | None = None) -> Ou
     if statement.kind == "compare" and len(statement.args) == 2:
         left = evaluate(statement.args[0], env, ctx)
         right = evaluate(statement.args[1], env, ctx)
-        holds = _compare(statement.value[0], left, right, statement)
         sides = [describe_value(left), describe_value(right)]
+        try:
+            holds = _compare(statement.value[0], left, right, statement)
+        except Undecided as error:      # keep what was computed: the report shows it
+            error.sides, error.certified = sides, ctx.certified
+            raise error.at(statement.place()) if error.place is None else error
         if not holds and isinstance(left, Indexed) and isinstance(right, Indexed):
             ctx.witness = _first_difference(left, right)
     else:
@@ -420,4 +487,4 @@ def evaluate_claim(statement: Node, env: dict, ctx: Context | None = None) -> Ou
     if ctx.witness:
         witness = {k: str(list(v)) if isinstance(v, tuple) else describe_value(v)
                    for k, v in ctx.witness.items()}
-    return Outcome(bool(holds), sides, witness, ctx.evidence, ctx.error_bound)
+    return Outcome(bool(holds), sides, witness, ctx.evidence, ctx.error_bound, ctx.certified)

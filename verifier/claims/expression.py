@@ -139,7 +139,7 @@ class _Builder:
             self.expect(operand, ("bool",), "'not'")
             kind = "bool"
         else:
-            self.expect(operand, ("number", "matrix", "poly"), f"unary {op}")
+            self.expect(operand, ("number", "ball", "matrix", "poly"), f"unary {op}")
             kind = operand.type
         return self.new("unary", node, type=kind, value=op, args=[operand])
 
@@ -157,8 +157,8 @@ class _Builder:
         operands = [self.build(node.left, depth)] + [self.build(c, depth) for c in node.comparators]
         for op, a, b in zip(ops, operands, operands[1:]):
             if op in ("<", "<=", ">", ">="):
-                self.expect(a, ("number",), f"'{op}'")
-                self.expect(b, ("number",), f"'{op}'")
+                self.expect(a, ("number", "ball"), f"'{op}'")
+                self.expect(b, ("number", "ball"), f"'{op}'")
             if op in ("in", "not in") and element_type(b.type) is None:
                 raise ExpressionError(f"'{op}' needs a set, list or complex on its right, "
                                       f"got {b.type}", b.place())
@@ -229,7 +229,8 @@ class _Builder:
                 raise ExpressionError(
                     f"{name}: argument '{param.name}' must be {' or '.join(param.types)}, "
                     f"got {arg.type}", arg.place())
-        return self.new("call", node, type=function.returns, function=function, args=args)
+        return self.new("call", node, type=_static(function.returns), function=function,
+                        args=args)
 
     def build_quantifier(self, name, node, depth):
         if len(node.args) != 1:
@@ -272,8 +273,8 @@ class _Builder:
             self.expect(element, ("bool",), name)
             kind = "bool"
         elif name == "sum":
-            self.expect(element, ("number",), "sum")
-            kind = "number"
+            self.expect(element, ("number", "ball"), "sum")
+            kind = element.type if element.type == "ball" else "number"
         else:
             kind = "number"
         return self.new("quant", node, type=kind, value=name, args=[element], loops=loops)
@@ -290,7 +291,7 @@ def _binop_type(op, left: Node, right: Node, builder: _Builder, node) -> str:
         return "any"
     if op == "**":
         builder.expect(right, ("number",), "an exponent")
-        if a in ("number", "matrix", "poly"):
+        if a in ("number", "ball", "matrix", "poly"):
             return a
     elif op in ("&", "|"):
         if a == b == "set":
@@ -300,6 +301,8 @@ def _binop_type(op, left: Node, right: Node, builder: _Builder, node) -> str:
             return "number"
     elif a == b == "number":
         return "number"
+    elif op in ("+", "-", "*", "/") and {a, b} <= {"number", "ball"}:
+        return "ball"
     elif op in ("+", "-") and a == b and a in ("matrix", "poly"):
         return a
     elif op in ("*", "@") and a == b == "matrix":
@@ -311,6 +314,12 @@ def _binop_type(op, left: Node, right: Node, builder: _Builder, node) -> str:
     elif op == "/" and a in ("matrix", "poly") and b == "number":
         return a
     raise builder.fail(f"operator '{op}' does not apply to {a} and {b}", node)
+
+
+def _static(returns: str) -> str:
+    """The static type of a call: ``number|ball`` (exact where it can be, an enclosure
+    otherwise) is checked as ``ball``, which accepts exact numbers too."""
+    return "ball" if returns == "number|ball" else returns
 
 
 def _refusal(node) -> str:

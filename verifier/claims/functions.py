@@ -38,6 +38,8 @@ class Function:
     source: str
     summary_text: str = ""
     combinatorial: bool = False  # no exact linear algebra inside
+    evidence: str = "exact"      # the weakest evidence its results can carry (SPEC §6);
+                                 # "certified" results are enclosures or certified counts
 
     @property
     def summary(self) -> str:
@@ -100,8 +102,9 @@ TABLE: list[Function] = [
              "The identity matrix of order n, or indexed by the simplices of a complex."),
     # linear algebra
     Function("transpose", (P("A", M),), M, None, "definition", "The transpose of a matrix."),
-    Function("abs", (P("x", N, M),), "any", None, "definition",
-             "Absolute value of a number, or of every entry of a matrix."),
+    Function("abs", (P("x", N, M, "ball"),), "any", None, "definition",
+             "Absolute value of a number (the modulus of a certified complex number), or of "
+             "every entry of a matrix."),
     Function("det", (P("A", M),), N, "invariants.det", "exact elimination"),
     Function("trace", (P("A", M),), N, "invariants.trace", "definition"),
     Function("rank", (P("A", M),), N, "invariants.rank", "exact elimination over Q"),
@@ -115,7 +118,34 @@ TABLE: list[Function] = [
     Function("negative", (P("A", M),), N, "invariants.negative", "Sylvester's law of inertia"),
     Function("multiplicity", (P("A", M), P("value", N)), N, "invariants.multiplicity",
              "exact nullity or root multiplicity"),
-    Function("zeta", (P("A", M), P("s", N)), N, "invariants.zeta", "tr A^-s"),
+    Function("zeta", (P("A", M), P("s", N), P("t", N, default=0)), "number|ball", None,
+             "tr A^-s; O. Knill, arXiv:1312.4239 (2013)",
+             "zeta_A(s + i t) = sum of lambda^-(s+it) over the eigenvalues of A: exact (tr A^-s) "
+             "at an integer s with t = 0, otherwise a certified enclosure.",
+             evidence="certified"),
+    # certified numerics (enclosures with exact rational ends; SPEC §6)
+    Function("eigenvalue_enclosures", (P("A", M),), "list[ball]", "exact.eigenvalue_enclosures",
+             "F. Johansson, IEEE Trans. Comput. 66 (2017) 1281-1292", evidence="certified"),
+    Function("zeros_in_box", (P("A", M), P("re_lo", N), P("re_hi", N), P("im_lo", N),
+                              P("im_hi", N)), N, "exact.zeros_in_box",
+             "argument principle; P. Henrici, Applied and Computational Complex Analysis I, "
+             "§4.6", evidence="certified"),
+    Function("zeros_on_axis", (P("A", M), P("t_lo", N), P("t_hi", N)), N,
+             "exact.zeros_on_axis", "O. Knill, arXiv:1312.4239 (2013)", evidence="certified"),
+    Function("re", (P("z", N, "ball"),), "number|ball", None, "definition",
+             "The real part of a number or of a certified complex number."),
+    Function("im", (P("z", N, "ball"),), "number|ball", None, "definition",
+             "The imaginary part of a number or of a certified complex number."),
+    # free energy (O. Knill, arXiv:2105.07553)
+    Function("free_energy", (P("V", C, M), P("p", "list"), P("T", N)), "number|ball",
+             None, "O. Knill, arXiv:2105.07553 (2021)",
+             "F_T(p) = sum V(x,y) p(x) p(y) - T S(p), S(p) = -sum p log p; V a matrix or the "
+             "Green function of a complex. Exact when S(p) = 0 or T = 0, else certified.",
+             evidence="certified"),
+    Function("critical_points", (P("V", C, M), P("T", N)), "list[list[number]]",
+             "energy.critical_points", "O. Knill, arXiv:2105.07553 (2021); Lagrange conditions",
+             "Critical points of F_T on the probability simplex, lowest F first (floating "
+             "point, rounded to 6 decimals: evidence float).", evidence="float"),
     # topology
     Function("betti", (P("K", C), P("k", N, default=None), P("p", N, default=0)), "any",
              "invariants.betti", "J. R. Munkres (1984) §5, §7"),

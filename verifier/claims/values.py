@@ -6,8 +6,11 @@ labels, a ``frozenset`` of simplices, a tuple (list), a polynomial, and
 :class:`Indexed` -- a matrix whose rows and columns may be named by simplices, so that
 ``M[x, y]`` works with simplices as well as with integers.
 
-Static types are short strings: ``number bool complex simplex set matrix poly`` and
-``list[T]``; ``any`` matches everything.  A parameter may accept several types.
+Static types are short strings: ``number ball bool complex simplex set matrix poly`` and
+``list[T]``; ``any`` matches everything.  A parameter may accept several types.  A
+``ball`` is a certified number (:class:`~verifier.claims.enclosure.Enclosure`): a
+rectangle with exact rational corners proved to contain the value; exact numbers are
+accepted wherever a ball is.
 """
 
 from __future__ import annotations
@@ -16,11 +19,13 @@ import hashlib
 from dataclasses import dataclass
 from fractions import Fraction
 
+from .enclosure import Enclosure
+
 __all__ = ["Indexed", "TYPES", "element_type", "type_of", "compatible", "describe_value"]
 
 MAX_SHOWN_ENTRIES = 400   # larger matrices are described by shape and digest
 
-TYPES = ("number", "bool", "complex", "simplex", "set", "matrix", "poly", "list", "any")
+TYPES = ("number", "ball", "bool", "complex", "simplex", "set", "matrix", "poly", "list", "any")
 
 
 def element_type(t: str) -> str | None:
@@ -39,6 +44,8 @@ def element_type(t: str) -> str | None:
 def compatible(actual: str, accepted: tuple[str, ...]) -> bool:
     """Can a value of static type ``actual`` be passed where ``accepted`` is expected?"""
     if actual == "any" or "any" in accepted:
+        return True
+    if actual == "number" and "ball" in accepted:   # an exact number is a degenerate ball
         return True
     base = actual.split("[", 1)[0]
     if base == "list" and "simplex" in accepted:   # a literal tuple of labels names a simplex
@@ -90,6 +97,8 @@ def type_of(value) -> str:
         return "bool"
     if isinstance(value, (int, Fraction)):
         return "number"
+    if isinstance(value, Enclosure):
+        return "ball"
     if isinstance(value, Complex):
         return "complex"
     if isinstance(value, Indexed):
@@ -108,6 +117,8 @@ def describe_value(value) -> str:
         return "true" if value else "false"
     if isinstance(value, (int, Fraction)):
         return str(value)
+    if isinstance(value, Enclosure):
+        return value.text()
     if isinstance(value, Complex):
         return f"complex with facets {value.facet_labels()}"
     if isinstance(value, Indexed):

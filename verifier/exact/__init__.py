@@ -7,13 +7,14 @@ Python ints and ``fractions.Fraction``, never a python-flint type.
 from .linalg import (Verdict, charpoly, charpoly_is_reciprocal, charpoly_of_square, det,
                      inverse, inverse_many, invariant_factors, is_inverse, kernel_dim, multiplicity, rank,
                      rank_mod, signature, unit_ldl, verified_inverse_batch)
-from .certified import (Ball, Undecided, compare, eigenvalue_enclosures, zeros_in_box,
-                        zeros_on_axis, zeta_ball)
+from .certified import (Ball, Undecided, compare, eigenvalue_enclosures, entropy_ball,
+                        zeros_in_box, zeros_on_axis, zeta_ball)
 from .matrix import ExactError, Matrix
 from .poly import Poly
 
 __all__ = [
-    "Ball", "Undecided", "compare", "eigenvalue_enclosures", "zeros_in_box", "zeros_on_axis",
+    "Ball", "Undecided", "compare", "eigenvalue_enclosures", "entropy_ball", "zeros_in_box",
+    "zeros_on_axis",
     "zeta_ball",
     "Matrix", "Poly", "Verdict", "ExactError", "charpoly", "charpoly_is_reciprocal",
     "charpoly_of_square", "det", "inverse", "inverse_many", "invariant_factors", "is_inverse", "kernel_dim",

@@ -14,6 +14,7 @@ Public names
 - :func:`compare`
 - :func:`zeros_in_box`
 - :func:`zeros_on_axis`
+- :func:`entropy_ball`
 
 A question that cannot be settled at the maximum precision raises :class:`Undecided`
 (or, for :func:`compare`, returns ``"undecided"``); it is never turned into a yes or no.
@@ -40,7 +41,7 @@ from .matrix import Matrix
 from .poly import Poly
 
 __all__ = ["Ball", "Undecided", "eigenvalue_enclosures", "zeta_ball", "compare",
-           "zeros_in_box", "zeros_on_axis"]
+           "zeros_in_box", "zeros_on_axis", "entropy_ball"]
 
 PRECISIONS = (64, 128, 256, 512, 1024)   # the ladder tried by the adaptive routines
 _MAX_PIECES = 20000                       # per contour / segment, per precision
@@ -304,6 +305,32 @@ def zeta_ball(M, s, prec: int = 128) -> tuple[tuple[Fraction, Fraction], tuple[F
     return _arb_interval(value.real), _arb_interval(value.imag)
 
 
+def entropy_ball(p, prec: int = 128) -> tuple[Fraction, Fraction]:
+    """A certified enclosure of the entropy S(p) = -sum_x p_x log p_x (0 log 0 = 0).
+
+    Parameters: ``p`` a sequence of exact non-negative rationals; ``prec`` bits.
+    Returns ``(lo, hi)``, exact rationals; exactly ``(0, 0)`` when every p_x is 0 or 1.
+
+    >>> lo, hi = entropy_ball([Fraction(1, 2), Fraction(1, 2)], prec=40)   # log 2
+    >>> lo < Fraction(693147180559945, 10**15) < hi, float(hi - lo) < 1e-10
+    (True, True)
+
+    Method: arb logarithms of the exact rationals [AR].  Reference: C. E. Shannon, Bell
+    System Tech. J. 27 (1948) 379-423.
+    """
+    prec = _check_prec(prec)
+    values = [_rational(x, f"p[{i}]") for i, x in enumerate(p)]
+    if any(x < 0 for x in values):
+        raise ValueError("entropy needs non-negative entries")
+    with _Prec(prec):
+        total = arb(0)
+        for x in values:
+            if x not in (0, 1):
+                a = arb(_fmpq(x))
+                total -= a * a.log()
+    return _arb_interval(total)
+
+
 def _as_interval(x, what: str) -> tuple[Fraction, Fraction]:
     if isinstance(x, Ball):
         return x.interval()
@@ -385,7 +412,7 @@ def _winding(logs, corners, prec: int, min_width: Fraction) -> int | None:
 
 
 def zeros_in_box(M, re_lo, re_hi, im_lo, im_hi, prec: int = 128,
-                 max_prec: int = PRECISIONS[-1]) -> int:
+                 max_prec: int = PRECISIONS[-1], details: dict | None = None) -> int:
     """The number of zeros of zeta_K (with multiplicity) in the open rectangle, certified.
 
     zeta_K(s) = sum_lambda lambda^(-s) (see :func:`zeta_ball`) is entire, so by the
@@ -394,8 +421,9 @@ def zeros_in_box(M, re_lo, re_hi, im_lo, im_hi, prec: int = 128,
 
     Parameters: ``M`` as in :func:`eigenvalue_enclosures` (invertible); the four sides as
     exact rationals with re_lo < re_hi, im_lo < im_hi; ``prec`` the starting precision,
-    raised by doubling up to ``max_prec``.  Returns an int.  Raises :class:`Undecided`
-    when a zero lies on (or too close to) the boundary at ``max_prec``.
+    raised by doubling up to ``max_prec``; ``details``, if given a dict, receives the
+    precision that settled the count under ``"bits"``.  Returns an int.  Raises
+    :class:`Undecided` when a zero lies on (or too close to) the boundary at ``max_prec``.
 
     >>> zeros_in_box(Matrix.from_rows([[2, 0], [0, 3]]), -1, 1, -1, 1)   # 2^-s + 3^-s
     0
@@ -420,6 +448,8 @@ def zeros_in_box(M, re_lo, re_hi, im_lo, im_hi, prec: int = 128,
         with _Prec(p):
             n = _winding(spectrum.logs(p), corners, p, size / 2 ** (p // 4))
         if n is not None:
+            if details is not None:
+                details["bits"] = p
             return n
     raise Undecided(f"zeros_in_box: the winding number of zeta_K around "
                     f"[{re_lo}, {re_hi}] x [{im_lo}, {im_hi}] is not certified at {max_prec} bits "
@@ -462,7 +492,8 @@ def _axis_count(logs, t_lo: Fraction, t_hi: Fraction, min_width: Fraction) -> in
     return count
 
 
-def zeros_on_axis(M, t_lo, t_hi, prec: int = 128, max_prec: int = PRECISIONS[-1]) -> int:
+def zeros_on_axis(M, t_lo, t_hi, prec: int = 128, max_prec: int = PRECISIONS[-1],
+                  details: dict | None = None) -> int:
     """The number of zeros of zeta_K on the segment {i t : t_lo <= t <= t_hi}, certified.
 
     For a positive definite M whose spectrum is closed under lambda -> 1/lambda (the
@@ -472,7 +503,7 @@ def zeros_on_axis(M, t_lo, t_hi, prec: int = 128, max_prec: int = PRECISIONS[-1]
     also counts zeros of zeta_K with multiplicity on that segment.
 
     Parameters: ``M`` as in :func:`eigenvalue_enclosures`; ``t_lo < t_hi`` exact rationals;
-    ``prec``/``max_prec`` as in :func:`zeros_in_box`.  Returns an int.  Raises
+    ``prec``/``max_prec``/``details`` as in :func:`zeros_in_box`.  Returns an int.  Raises
     ``ValueError`` if the spectrum is not positive and reciprocal, :class:`Undecided` if a
     zero sits at an endpoint, is multiple, or is not separated at ``max_prec``.
 
@@ -498,6 +529,8 @@ def zeros_on_axis(M, t_lo, t_hi, prec: int = 128, max_prec: int = PRECISIONS[-1]
         with _Prec(p):
             n = _axis_count(spectrum.logs(p), t_lo, t_hi, (t_hi - t_lo) / 2 ** (p // 4))
         if n is not None:
+            if details is not None:
+                details["bits"] = p
             return n
     raise Undecided(f"zeros_on_axis: the zeros of zeta_K(i t) on [{t_lo}, {t_hi}] are not "
                     f"certified at {max_prec} bits (a zero at an endpoint, a multiple zero, or more "

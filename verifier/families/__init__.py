@@ -53,6 +53,7 @@ random-pure       random pure d-complexes
 linial-meshulam   random 2-complexes Y(n, p)
 random-geometric  flag complexes of random geometric graphs
 catalog           classic triangulations by name                (:mod:`.named`)
+cycles            the cycle graphs C_n                           (:mod:`.cycles`)
 file              complexes read from files
 refine, skeleton, cone, suspension, join, product   derived     (:mod:`.derived`)
 ================  =============================================================
@@ -67,6 +68,7 @@ refine, skeleton, cone, suspension, join, product   derived     (:mod:`.derived`
 
 from __future__ import annotations
 
+from .cycles import CYCLES
 from .derived import CONE, JOIN, PRODUCT, REFINE, SKELETON, SUSPENSION
 from .enumerated import ALL_COMPLEXES, GRAPHS
 from .family import (MAX_COUNT, MAX_RANDOM_VERTICES, MAX_SIMPLICES, Family, FamilyError,
@@ -80,7 +82,7 @@ __all__ = ["FAMILIES", "FamilyError", "Family", "FamilyType", "Param", "make_fam
 FAMILIES: dict[str, FamilyType] = {
     kind.name: kind for kind in (
         ALL_COMPLEXES, GRAPHS, RANDOM_FLAG, RANDOM_PURE, LINIAL_MESHULAM,
-        RANDOM_GEOMETRIC, CATALOG, FILE, REFINE, SKELETON, CONE, SUSPENSION, JOIN,
+        RANDOM_GEOMETRIC, CATALOG, CYCLES, FILE, REFINE, SKELETON, CONE, SUSPENSION, JOIN,
         PRODUCT)
 }
 

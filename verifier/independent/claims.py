@@ -47,11 +47,15 @@ from __future__ import annotations
 from fractions import Fraction
 from itertools import combinations, permutations
 
-from ..claims.errors import ClaimError, EvaluationError, LimitExceeded
+from ..claims.errors import ClaimError, EvaluationError, LimitExceeded, Undecided
 from ..claims.evaluate import Context, Limits, evaluate, evaluate_claim
 from ..claims.expression import parse
+from ..claims.enclosure import (Count, Enclosure, enclosure_list, free_energy_value,
+                                imaginary_part, real_part,
+                                probability_vector, rounded_points, zeta_value)
 from ..claims.values import Indexed
 from ..complex import Complex, ComplexError
+from . import certified as cert
 from . import matrix as mx
 from .matrix import Matrix
 
@@ -994,6 +998,8 @@ def _transpose(M):
 def _abs(x):
     if isinstance(x, Indexed):
         return Indexed(x.matrix.entrywise_abs(), x.rows, x.cols)
+    if isinstance(x, Enclosure):
+        return x.modulus()
     return abs(x)
 
 
@@ -1038,10 +1044,81 @@ def _multiplicity(M, value):
     return mx.multiplicity(M.matrix, value)
 
 
-def _zeta(M, s):
-    if isinstance(s, bool) or not isinstance(s, int):
-        raise EvaluationError(f"zeta is evaluated at integers only, got {s}")
-    return (M.matrix ** (-s)).trace()
+def _zeta(M, s, t=0):
+    if t == 0 and isinstance(s, int) and not isinstance(s, bool):
+        return (M.matrix ** (-s)).trace()
+    poly = _spectral_poly(M, "zeta")
+    if poly.coeffs[0] == 0:
+        raise EvaluationError("zeta: matrix is singular (0 is an eigenvalue)")
+    return zeta_value(poly.coeffs, s, t, lambda bits: cert.zeta_enclosure(poly, s, t, bits),
+                      BITS)
+
+
+# ------------------------------------------------------- certified numbers
+BITS = 160      # the starting precision here; the main backend starts at 128 bits
+
+_POLYS: dict = {}
+
+
+def _spectral_poly(M, name: str):
+    """The exact characteristic polynomial of a symmetric integer matrix (cached)."""
+    matrix = M.matrix
+    hit = _POLYS.get(id(matrix))
+    if hit is not None and hit[0] is matrix:
+        return hit[1]
+    n, m = matrix.shape
+    if n != m:
+        raise EvaluationError(f"{name} needs a square matrix, got {n}x{m}")
+    if not matrix.is_integer() or not mx.is_symmetric(matrix):
+        raise EvaluationError(f"{name} needs a symmetric integer matrix (real eigenvalues)")
+    poly = mx.charpoly(matrix)
+    if len(_POLYS) >= 8:
+        _POLYS.pop(next(iter(_POLYS)))
+    _POLYS[id(matrix)] = (matrix, poly)
+    return poly
+
+
+def _eigenvalue_enclosures(M):
+    poly = _spectral_poly(M, "eigenvalue_enclosures")
+    return enclosure_list(lambda bits: cert.eigenvalue_enclosures(poly, bits), BITS)
+
+
+def _zeros_in_box(M, re_lo, re_hi, im_lo, im_hi):
+    poly, details = _spectral_poly(M, "zeros_in_box"), {}
+    n = cert.zeros_in_box(poly, re_lo, re_hi, im_lo, im_hi, BITS, details=details)
+    return Count(n, details["bits"])
+
+
+def _zeros_on_axis(M, t_lo, t_hi):
+    poly, details = _spectral_poly(M, "zeros_on_axis"), {}
+    n = cert.zeros_on_axis(poly, t_lo, t_hi, BITS, details=details)
+    return Count(n, details["bits"])
+
+
+def _interaction(V) -> list[list]:
+    """The rows of an interaction matrix: a symmetric matrix, or a complex's Green function."""
+    matrix = green(V).matrix if isinstance(V, Complex) else V.matrix
+    n, m = matrix.shape
+    if n != m or not mx.is_symmetric(matrix):
+        raise EvaluationError("the interaction matrix must be square and symmetric")
+    return matrix.rows()
+
+
+def _free_energy(V, p, T):
+    rows = _interaction(V)
+    p = probability_vector(p, len(rows))
+    U = Fraction(0)
+    for x, px in enumerate(p):
+        if px:
+            U += px * sum(rows[x][y] * py for y, py in enumerate(p) if py)
+    return free_energy_value(U, p, T, lambda bits: cert.entropy_enclosure(p, bits), BITS)
+
+
+def _critical_points(V, T):
+    if Fraction(T) <= 0:
+        raise EvaluationError(f"critical_points needs a temperature T > 0, got {T}")
+    found = cert.critical_points(_interaction(V), Fraction(T))
+    return rounded_points(point for point, _kind in found)
 
 
 IMPLEMENTATIONS = {
@@ -1060,6 +1137,10 @@ IMPLEMENTATIONS = {
     "unit_sphere": unit_sphere, "boundary": boundary, "interior": interior,
     "refine": refine, "join": join, "cone": cone, "suspension": suspension,
     "product": product, "skeleton": skeleton, "union": union,
+    "eigenvalue_enclosures": _eigenvalue_enclosures, "zeros_in_box": _zeros_in_box,
+    "zeros_on_axis": _zeros_on_axis, "re": real_part, "im": imaginary_part,
+    "free_energy": _free_energy,
+    "critical_points": _critical_points,
 }
 """Function name -> independent implementation, one entry per name of the table."""
 
@@ -1123,9 +1204,12 @@ def evaluate_claim_independently(statement: str, variables: dict, where: str | N
         return {"outcome": "outside", "holds": False, "outside": True, "sides": [],
                 "witness": None, "evidence": "exact"}
     outcome = evaluate_claim(node, env, Context(limits, IMPLEMENTATIONS))
-    return {"outcome": "holds" if outcome.holds else "fails", "holds": outcome.holds,
-            "outside": False, "sides": list(outcome.sides), "witness": _plain(outcome.witness),
-            "evidence": outcome.evidence}
+    result = {"outcome": "holds" if outcome.holds else "fails", "holds": outcome.holds,
+              "outside": False, "sides": list(outcome.sides),
+              "witness": _plain(outcome.witness), "evidence": outcome.evidence}
+    if outcome.certified:
+        result["certified"] = outcome.certified
+    return result
 
 
 def _problem(outcome: str, message: str) -> dict:
@@ -1149,6 +1233,8 @@ def run_task(task: dict) -> dict:
                                             task.get("where"))
     except ComplexError as error:
         return _problem("error", f"building the case: {error}")
+    except Undecided as error:
+        return _problem("undecided", error.message)
     except LimitExceeded as error:
         return _problem("limit", f"{error.limit}: {error.message}")
     except ClaimError as error:
@@ -1234,18 +1320,42 @@ def recheck_run(tasks, timeout: float | None = None) -> RecheckRun:
     >>> run.results[0]["holds"], run.report["flint_in_sys_modules"]
     (True, False)
 
-    Notes: one process start (about half a second) per call; batch many tasks.
-    Reference: sympy documentation, "Ground types" (why a separate process is needed).
+    Notes: one process start (about half a second) per call, one process per core for
+    batches of 16 tasks or more; batch many tasks.  Reference: sympy documentation,
+    "Ground types" (why a separate process is needed).
     """
     tasks = validate_tasks(tasks)
     from .process import call
-    answer = call("verifier.independent.recheck", {"tasks": tasks}, timeout, RecheckError,
-                  "the re-check process")
-    report = answer.get("report", {})
-    results = answer.get("results", [])
-    if len(results) != len(tasks):
-        raise RecheckError(f"the re-check process answered {len(results)} of {len(tasks)} tasks")
+    share = _processes(len(tasks))
+    parts = [tasks[i::share] for i in range(share)]      # interleaved: similar sizes
+
+    def one(part):
+        return call("verifier.independent.recheck", {"tasks": part}, timeout, RecheckError,
+                    "the re-check process")
+
+    if share == 1:
+        answers = [one(parts[0])]
+    else:
+        from concurrent.futures import ThreadPoolExecutor
+        with ThreadPoolExecutor(share) as pool:
+            answers = list(pool.map(one, parts))
+    results: list = [None] * len(tasks)
+    for i, (part, answer) in enumerate(zip(parts, answers)):
+        got = answer.get("results", [])
+        if len(got) != len(part):
+            raise RecheckError(f"the re-check process answered {len(got)} of {len(part)} tasks")
+        results[i::share] = got
+    report = dict(answers[0].get("report", {}))
+    if share > 1:
+        report["processes"] = share
     return RecheckRun(results, report)
+
+
+def _processes(count: int) -> int:
+    """Re-check processes for ``count`` tasks: one per core (at most 4) for big batches."""
+    import os
+    cores = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else os.cpu_count()
+    return max(1, min(4, cores or 1, count // 8))
 
 
 def recheck(tasks, timeout: float | None = None) -> list[dict]:

@@ -18,7 +18,7 @@ import time
 from dataclasses import asdict
 from functools import lru_cache
 
-from ..claims.errors import ClaimError, LimitExceeded
+from ..claims.errors import ClaimError, LimitExceeded, Undecided
 from ..claims.evaluate import Context, Limits, evaluate, evaluate_claim
 from ..claims.loader import Claim, load_text
 
@@ -105,10 +105,14 @@ def evaluate_case(claim: Claim, case_id: str, limits: Limits) -> dict:
 
 def _judge(claim: Claim, env: dict, limits: Limits) -> dict:
     """Outcome of the claim on one environment (no timing, no ids)."""
+    context = Context(limits)
     try:
         if claim.where is not None and not evaluate(claim.where, env, Context(limits)):
             return {"outcome": "outside"}
-        outcome = evaluate_claim(claim.statement, env, Context(limits))
+        outcome = evaluate_claim(claim.statement, env, context)
+    except Undecided as error:     # a certified comparison the precision ladder cannot settle
+        return {"outcome": "undecided", "evidence": "certified", "message": error.message,
+                "sides": getattr(error, "sides", []), "certified": context.certified}
     except LimitExceeded as error:
         return {"outcome": "limit", "message": f"{error.limit}: {error.message}"}
     except ClaimError as error:
@@ -119,7 +123,8 @@ def _judge(claim: Claim, env: dict, limits: Limits) -> dict:
         return {"outcome": "limit", "message": "memory: the case needed more memory than its "
                                                "worker may use (--case-memory)"}
     result = {"outcome": "holds" if outcome.holds else "fails", "evidence": outcome.evidence,
-              "sides": outcome.sides, "witness": outcome.witness}
+              "sides": outcome.sides, "witness": outcome.witness,
+              "certified": outcome.certified}
     if EVIDENCE_ORDER.index(outcome.evidence) > EVIDENCE_ORDER.index(claim.evidence):
         result["outcome"] = "weak"
         result["message"] = (f"evidence {outcome.evidence} (error bound "

@@ -25,7 +25,7 @@ from .cases import _claims as _claims_cache
 from .cases import complexes_of, family_label, limits_dict, plan, run_batch, sources_of
 from .engines import Batch, DaskEngine, InlineEngine, ProcessEngine
 from .shrink import shrink
-from .store import Store
+from .store import Store, verdict_of
 
 __all__ = ["run", "RunOptions", "ClaimResult", "RunResult", "digest_of", "ENGINES"]
 
@@ -54,9 +54,11 @@ class ClaimResult:
     digest: str
     seconds: float
     meets_expectation: bool
-    verdict: str                       # what a reader is told: holds / fails / incomplete
+    verdict: str                       # what a reader is told: holds / fails / undecided /
+                                       # incomplete (store.verdict_of)
     counterexample: dict | None = None
     problems: list = field(default_factory=list)
+    certified: list = field(default_factory=list)   # certified values per case (with bits)
 
 
 @dataclass
@@ -210,21 +212,15 @@ def _summarise(store: Store, run_id: str, claim: Claim, options: RunOptions) -> 
     rows = store.hashes(run_id, claim.name)
     problems = store.problem_cases(run_id, claim.name)
     failing = counts["fails"] > 0
-    unsettled = counts["error"] + counts["limit"] + counts["weak"]
-    if claim.expect == "holds":
-        meets = not failing and unsettled == 0
-        verdict = "fails" if failing else ("incomplete" if unsettled else "holds")
-    else:
-        meets = failing
-        verdict = "fails, as expected" if failing else (
-            "incomplete" if unsettled else "holds, expected to fail")
+    meets, verdict = verdict_of(counts, claim.expect)
     counterexample = None
     if failing:
         counterexample = store.counterexample(run_id, claim.name)
         if counterexample is None:
             counterexample = _shrink_first(store, run_id, claim, options)
     return ClaimResult(claim, counts, len(rows), digest_of(rows),
-                       store.seconds(run_id, claim.name), meets, verdict, counterexample, problems)
+                       store.seconds(run_id, claim.name), meets, verdict, counterexample, problems,
+                       store.certified_values(run_id, claim.name))
 
 
 def _shrink_first(store: Store, run_id: str, claim: Claim, options: RunOptions) -> dict:
@@ -243,6 +239,7 @@ def _shrink_first(store: Store, run_id: str, claim: Claim, options: RunOptions) 
         "sides": final["sides"],
         "witness": final["witness"],
         "evidence": final["evidence"],
+        "certified": final["certified"],
         "steps": shrunk.steps,
         "evaluations": shrunk.evaluations,
         "minimal": shrunk.complete,
@@ -255,5 +252,6 @@ def evaluate_case_env(claim: Claim, env: dict, limits: Limits) -> dict:
     """Sides, witness and evidence of the statement on an environment (it must fail)."""
     from ..claims.evaluate import Context, evaluate_claim
     outcome = evaluate_claim(claim.statement, env, Context(limits))
-    return {"sides": outcome.sides, "witness": outcome.witness, "evidence": outcome.evidence}
+    return {"sides": outcome.sides, "witness": outcome.witness, "evidence": outcome.evidence,
+            "certified": outcome.certified}
 

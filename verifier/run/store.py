@@ -16,9 +16,32 @@ import sqlite3
 import time
 from pathlib import Path
 
-__all__ = ["Store", "OUTCOMES"]
+__all__ = ["Store", "OUTCOMES", "UNSETTLED", "verdict_of"]
 
-OUTCOMES = ("holds", "fails", "outside", "error", "limit", "weak")
+OUTCOMES = ("holds", "fails", "outside", "error", "limit", "weak", "undecided")
+UNSETTLED = ("error", "limit", "weak", "undecided")   # cases that settle nothing either way
+
+
+def verdict_of(counts: dict, expect: str) -> tuple[bool, str]:
+    """Whether a claim's outcome counts meet its expectation, and the words for it.
+
+    A failing case decides a claim; otherwise any unsettled case leaves it open:
+    ``undecided`` when every such case is a certified comparison that the maximum
+    precision could not settle, ``incomplete`` when some case hit an error or a limit.
+
+    >>> verdict_of({"holds": 3, "undecided": 1}, "holds")
+    (False, 'undecided')
+    >>> verdict_of({"fails": 1, "error": 2}, "fails")
+    (True, 'fails, as expected')
+    """
+    failing = counts.get("fails", 0) > 0
+    unsettled = sum(counts.get(o, 0) for o in UNSETTLED)
+    open_word = "undecided" if unsettled == counts.get("undecided", 0) else "incomplete"
+    if expect == "holds":
+        return (not failing and unsettled == 0,
+                "fails" if failing else (open_word if unsettled else "holds"))
+    return (failing, "fails, as expected" if failing else (
+        open_word if unsettled else "holds, expected to fail"))
 
 SCHEMA = """
 CREATE TABLE IF NOT EXISTS runs (
@@ -40,6 +63,7 @@ CREATE TABLE IF NOT EXISTS cases (
     witness      TEXT,
     message      TEXT,
     seconds      REAL,
+    certified    TEXT,
     PRIMARY KEY (run_id, claim, case_id)
 ) WITHOUT ROWID;
 CREATE TABLE IF NOT EXISTS counterexamples (
@@ -62,6 +86,9 @@ class Store:
         self.db.execute("PRAGMA journal_mode=WAL")
         self.db.execute("PRAGMA synchronous=NORMAL")
         self.db.executescript(SCHEMA)
+        columns = {row[1] for row in self.db.execute("PRAGMA table_info(cases)")}
+        if "certified" not in columns:       # a store written before certified values
+            self.db.execute("ALTER TABLE cases ADD COLUMN certified TEXT")
         self.db.commit()
 
     def close(self):
@@ -104,11 +131,14 @@ class Store:
     def add_cases(self, run_id: str, records: list[dict]):
         """Write evaluated cases in one transaction (a case already present is kept)."""
         self.db.executemany(
-            "INSERT OR IGNORE INTO cases VALUES (?,?,?,?,?,?,?,?,?,?,?)",
+            "INSERT OR IGNORE INTO cases (run_id, claim, case_id, family, complex_hash, outcome, "
+            "evidence, sides, witness, message, seconds, certified) "
+            "VALUES (?,?,?,?,?,?,?,?,?,?,?,?)",
             [(run_id, r["claim"], r["case_id"], r["family"], r["complex_hash"], r["outcome"],
               r.get("evidence"), json.dumps(r.get("sides") or []),
               json.dumps(r.get("witness")) if r.get("witness") else None,
-              r.get("message"), r.get("seconds", 0.0)) for r in records])
+              r.get("message"), r.get("seconds", 0.0),
+              json.dumps(r["certified"]) if r.get("certified") else None) for r in records])
         self.db.commit()
 
     def counts(self, run_id: str, claim: str) -> dict[str, int]:
@@ -138,9 +168,19 @@ class Store:
     def problem_cases(self, run_id: str, claim: str, limit: int = 5) -> list[dict]:
         rows = self.db.execute(
             "SELECT case_id, outcome, message FROM cases WHERE run_id = ? AND claim = ? AND "
-            "outcome IN ('error', 'limit', 'weak') ORDER BY case_id LIMIT ?",
-            (run_id, claim, limit))
+            f"outcome IN ({', '.join('?' * len(UNSETTLED))}) ORDER BY case_id LIMIT ?",
+            (run_id, claim, *UNSETTLED, limit))
         return [{"case_id": c, "outcome": o, "message": m} for c, o, m in rows]
+
+    def certified_values(self, run_id: str, claim: str, limit: int = 200) -> list[dict]:
+        """The certified values (texts with their precision) recorded for a claim's cases,
+        in case-id order: what a certificate keeps so that a re-check can compare."""
+        rows = self.db.execute(
+            "SELECT case_id, outcome, sides, certified FROM cases WHERE run_id = ? AND "
+            "claim = ? AND certified IS NOT NULL ORDER BY case_id LIMIT ?",
+            (run_id, claim, limit))
+        return [{"case_id": c, "outcome": o, "sides": json.loads(s or "[]"),
+                 "values": json.loads(v)} for c, o, s, v in rows]
 
     def summary(self, run_id: str) -> dict[str, dict]:
         """Per claim: outcome counts, number of cases and summed case time (one query)."""
