@@ -201,6 +201,12 @@ def test_an_undecidable_claim_is_reported_undecided_not_pass_or_fail(tmp_path):
         store.close()
     assert [r["outcome"] for r in recorded] == ["undecided"] * 3
     assert all("@128 bits" in r["values"][0]["value"] for r in recorded)
+    # the report says so too, with the reason for each case
+    from verifier.report import write_report
+    write_report(tmp_path / "s.db", tmp_path / "report")
+    text = (tmp_path / "report" / "report.md").read_text()
+    assert "verdict: **undecided**" in text
+    assert text.count(": undecided: the two values agree to within") == 3
 
 
 def test_stores_written_before_certified_values_gain_the_column(tmp_path):

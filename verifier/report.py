@@ -99,6 +99,7 @@ class ClaimData:
     counterexample: dict | None
     spectral: bool
     squared: bool
+    unsettled: list = field(default_factory=list)   # first few cases that settle nothing
 
 
 @dataclass
@@ -450,6 +451,11 @@ def collect(store_path, run_id: str | None = None,
                                 "claim = ?", (run_id, name)).fetchone()
             certificate, note = _certificate(folder, name, run_id)
             statement = spec.get("statement", "")
+            unsettled = [{"case_id": c, "outcome": o, "message": m or ""} for c, o, m in
+                         db.execute("SELECT case_id, outcome, message FROM cases WHERE "
+                                    f"run_id = ? AND claim = ? AND outcome IN "
+                                    f"({', '.join('?' * len(UNSETTLED))}) ORDER BY case_id "
+                                    "LIMIT 5", (run_id, name, *UNSETTLED))]
             claims.append(ClaimData(
                 name=name, title=spec.get("title") or name, statement=statement,
                 where=spec.get("where"), expect=spec.get("expect", "holds"),
@@ -458,7 +464,8 @@ def collect(store_path, run_id: str | None = None,
                 seconds=seconds, verdict=_verdict(spec.get("expect", "holds"), counts),
                 certificate=certificate, certificate_note=note,
                 counterexample=json.loads(record[0]) if record else None,
-                spectral=is_spectral(statement), squared=is_squared(statement)))
+                spectral=is_spectral(statement), squared=is_squared(statement),
+                unsettled=unsettled))
         return RunData(str(store_path), run_id, started, finished, engine, claims)
     finally:
         db.close()
@@ -691,6 +698,9 @@ def _markdown(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
                       "", "```", recheck_command(c.certificate), "```"]
         else:
             lines.append(f"Certificate: {c.certificate_note}.")
+        if c.unsettled:
+            lines += ["", "Unsettled cases (the first few):", ""] + [
+                f"- `{u['case_id']}`: {u['outcome']}: {_md(u['message'])}" for u in c.unsettled]
         record = c.counterexample
         if record:
             lines += ["", "### Minimal counterexample", ""]
@@ -803,6 +813,10 @@ def _html(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
                        f"re-check: <pre>{_h(recheck_command(c.certificate))}</pre>")
         else:
             out.append(_h(c.certificate_note))
+        if c.unsettled:
+            out.append("</dd><dt>unsettled</dt><dd><ul>" + "".join(
+                f"<li><code>{_h(u['case_id'])}</code>: {_h(u['outcome'])}: {_h(u['message'])}</li>"
+                for u in c.unsettled) + "</ul>")
         out += ["</dd></dl>", "<table><thead><tr><th>#</th><th>family</th><th>parameters</th>"
                 "<th>binds</th><th>cases</th><th>holds</th><th>fails</th><th>outside</th>"
                 "<th>other</th></tr></thead><tbody>"]

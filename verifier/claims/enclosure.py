@@ -470,8 +470,23 @@ def decide_equal(a, b) -> bool:
         if x.recompute is None and y.recompute is None:
             break
     width = max(x.width(), y.width())
-    raise Undecided(f"the two values agree to within {width} at {max(x.bits, y.bits)} bits, "
-                    "and no exact argument shows them equal")
+    raise Undecided(f"the two values agree to within {_magnitude(width)} at "
+                    f"{max(x.bits, y.bits)} bits, and no exact argument shows them equal")
+
+
+def _magnitude(x: Fraction) -> str:
+    """A short upper bound of a width: '1/500000000' when short, else '1e-k'.
+
+    >>> _magnitude(Fraction(3, 10**400))
+    '1e-399'
+    """
+    x = Fraction(x)
+    if x == 0 or len(str(x)) <= 12:
+        return str(x)
+    k = len(str(x.denominator)) - len(str(x.numerator))
+    while k > -400 and Fraction(1, 10) ** k < x:
+        k -= 1
+    return f"1e-{k}" if k > 0 else f"1e{-k}"
 
 
 def decide_sign(d) -> int:
