@@ -264,7 +264,7 @@ def _newton_step(r: list, bits: int, s_lo: int) -> bool:
         x = mpmath.mpf(mid.numerator) / mid.denominator
         coefficients = [mpmath.mpf(c) for c in reversed(fc)]
         previous = None
-        for _ in range(40):
+        for iteration in range(40):
             fx, dfx = mpmath.polyval(coefficients, x, derivative=True)
             if dfx == 0:
                 return False
@@ -272,7 +272,7 @@ def _newton_step(r: list, bits: int, s_lo: int) -> bool:
             x -= step
             if abs(step) <= abs(x) * mpmath.ldexp(1, -(bits + 16)):
                 break
-            if previous is not None and abs(step) > previous / 2 and _ > 8:
+            if previous is not None and abs(step) > previous / 2 and iteration > 8:
                 break                      # rounding noise, not convergence: the check decides
             previous = abs(step)
         if not mpmath.isfinite(x):
