@@ -318,6 +318,47 @@ class Complex:
             return faces.astype(np.int64), cofaces.astype(np.int64)
         return self._cached("containments", compute)
 
+    def dimension_offsets(self) -> tuple[int, ...]:
+        """Where each dimension starts in ``simplices``: the k-simplices are the
+        positions ``offsets[k] .. offsets[k+1] - 1`` (``dim + 2`` numbers)."""
+        return self._cached("dimension_offsets", lambda: tuple(
+            int(x) for x in np.concatenate([[0], np.cumsum(self.f_vector, dtype=np.int64)])))
+
+    def simplex_array(self, k: int) -> np.ndarray:
+        """The k-simplices as an int64 array of shape (f_k, k + 1), one sorted row of
+        vertex indices per simplex, in simplex order (read-only)."""
+        def compute():
+            offsets = self.dimension_offsets()
+            if not 0 <= k < len(offsets) - 1:
+                return np.zeros((0, k + 1), dtype=np.int64)
+            block = self.simplices[offsets[k]:offsets[k + 1]]
+            array = np.fromiter(chain.from_iterable(block), dtype=np.int64,
+                                count=len(block) * (k + 1)).reshape(len(block), k + 1)
+            array.flags.writeable = False
+            return array
+        return self._cached(("simplex_array", k), compute)
+
+    def face_positions(self, k: int) -> np.ndarray:
+        """The codimension-one faces of the k-simplices (k >= 1), as positions in
+        ``simplices``: an int64 array of shape (f_k, k + 1) whose column i holds the face
+        that omits the i-th smallest vertex (the face carrying the sign (-1)^i in the
+        boundary).  Read-only; computed by a vectorised search, without the index dict.
+        """
+        def compute():
+            offsets = self.dimension_offsets()
+            S = self.simplex_array(k)
+            if k < 1 or len(S) == 0:
+                return np.zeros((len(S), k + 1), dtype=np.int64)
+            keys = _row_keys(self.simplex_array(k - 1), self.n_vertices)
+            result = np.empty(S.shape, dtype=np.int64)
+            for i in range(k + 1):
+                face = np.delete(S, i, axis=1)
+                result[:, i] = np.searchsorted(keys, _row_keys(face, self.n_vertices))
+            result += offsets[k - 1]
+            result.flags.writeable = False
+            return result
+        return self._cached(("face_positions", k), compute)
+
     def vertex_stars(self) -> tuple[tuple[int, ...], ...]:
         """For each vertex, the positions of the simplices that contain it."""
         def compute():
@@ -398,6 +439,22 @@ class Complex:
         """Exact isomorphism test (for complexes small enough for canonical forms)."""
         return (self.f_vector == other.f_vector and self.n_vertices == other.n_vertices
                 and self.canonical_form() == other.canonical_form())
+
+
+def _row_keys(rows: np.ndarray, n_vertices: int) -> np.ndarray:
+    """Keys that order the rows of an int array (sorted vertex tuples of one length)
+    lexicographically: a mixed-radix integer when n^width fits in 63 bits, otherwise a
+    big-endian byte string (whose byte order is the lexicographic order of the rows)."""
+    width = rows.shape[1]
+    if width == 0:
+        return np.zeros(len(rows), dtype=np.int64)
+    if max(n_vertices, 2) ** width < 2 ** 63:
+        keys = np.zeros(len(rows), dtype=np.int64)
+        for column in range(width):
+            keys = keys * n_vertices + rows[:, column]
+        return keys
+    packed = np.ascontiguousarray(rows.astype(">u4"))
+    return packed.view(np.dtype((np.void, 4 * width))).ravel()
 
 
 # ------------------------------------------------------------------------------
