@@ -42,7 +42,8 @@ from .counting import dim, euler, f_vector, facets, omega, simplices, size, vert
 from .geometry import curvature, index, indices
 from .hodge import (boundary_matrix, dirac, exterior_derivative, hodge, signless_dirac,
                     signless_hodge)
-from .homology import betti
+from .homology import (betti, format_homology, homology, homology_witness, morse_reduction,
+                       torsion)
 from .manifolds import (NotDecided, is_ball, is_closed_manifold, is_manifold,
                         is_manifold_with_boundary, is_sphere)
 from .spectra import (charpoly, det, is_reciprocal, kernel_dim, multiplicity, negative,
@@ -52,6 +53,7 @@ __all__ = [
     "simplices", "vertices", "facets", "omega", "dim", "size", "f_vector", "euler", "wu",
     "connection", "green", "green_many", "green_by_inversion", "fredholm", "boundary_matrix",
     "exterior_derivative", "dirac", "hodge", "signless_dirac", "signless_hodge", "betti",
+    "homology", "torsion", "homology_witness", "morse_reduction", "format_homology",
     "charpoly", "is_reciprocal", "det", "trace", "rank", "kernel_dim", "positive", "negative",
     "signature", "multiplicity", "zeta", "curvature", "index", "indices", "is_closed_manifold",
     "is_manifold_with_boundary", "is_manifold", "is_sphere", "is_ball", "NotDecided",
