@@ -83,6 +83,7 @@ def describe(K: Complex) -> list[tuple[str, str]]:
         ("dimension", str(K.dim)),
         ("f-vector", str(list(K.f_vector))),
         ("Euler characteristic", str(inv.euler(K))),
+        ("integral homology", ",  ".join(inv.format_homology(inv.homology(K)))),
         ("Betti numbers over Q", str(list(inv.betti(K)))),
         ("Betti numbers over Z/2", str(list(inv.betti(K, p=2)))),
         ("Wu characteristic", str(inv.wu(K))),

@@ -92,14 +92,20 @@ def _abs(x):
 
 
 def _betti(K: Complex, k=None, p: int = 0):
-    if p and not _is_prime(p):
-        raise EvaluationError(f"betti over Z/p needs a prime p, got {p}")
+    if not (isinstance(p, int) and (p == 0 or exact.is_prime(p))):
+        raise EvaluationError(f"betti over Z/p needs p = 0 or a prime p, got {p}")
     numbers = inv.betti(K, k, p=p)
     return tuple(numbers) if k is None else numbers
 
 
-def _is_prime(p: int) -> bool:
-    return p >= 2 and all(p % d for d in range(2, int(p ** 0.5) + 1))
+def _homology(K: Complex) -> tuple:
+    return inv.homology(K)
+
+
+def _torsion(K: Complex, k) -> tuple:
+    if not isinstance(k, int):
+        raise EvaluationError(f"torsion needs an integer degree, got {k}")
+    return inv.torsion(K, k)
 
 
 def _signature(M: Indexed) -> tuple:
@@ -347,6 +353,7 @@ IMPLEMENTATIONS = {
     "trace": _trace, "rank": _rank, "kernel_dim": _kernel_dim, "charpoly": _charpoly,
     "is_reciprocal": _is_reciprocal, "signature": _signature, "positive": _positive,
     "negative": _negative, "multiplicity": _multiplicity, "zeta": _zeta, "betti": _betti,
+    "homology": _homology, "torsion": _torsion,
     "is_manifold": inv.is_manifold, "is_manifold_with_boundary": inv.is_manifold_with_boundary,
     "is_closed_manifold": inv.is_closed_manifold, "curvature": _curvature, "index": _index,
     "star": _star, "closed_star": _closed_star, "link": _link, "unit_sphere": _unit_sphere,

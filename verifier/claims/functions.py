@@ -148,7 +148,13 @@ TABLE: list[Function] = [
              "point, rounded to 6 decimals: evidence float).", evidence="float"),
     # topology
     Function("betti", (P("K", C), P("k", N, default=None), P("p", N, default=0)), "any",
-             "invariants.betti", "J. R. Munkres (1984) §5, §7"),
+             "invariants.betti", "J. R. Munkres (1984) §5, §7, §11; Morse reduction: "
+             "R. Forman, Adv. Math. 134 (1998)"),
+    Function("homology", (P("K", C),), "list[list]", "invariants.homology",
+             "J. R. Munkres (1984) §11; Morse reduction: R. Forman, Adv. Math. 134 (1998); "
+             "M. Mrozek, B. Batko, Discrete Comput. Geom. 42 (2009)"),
+    Function("torsion", (P("K", C), P("k", N)), "list[number]", "invariants.torsion",
+             "J. R. Munkres (1984) §11 (Smith normal form)"),
     Function("is_manifold", (P("K", C),), "bool", "invariants.is_manifold",
              "vertex links are spheres or balls; Munkres (1984) §35", **CB),
     Function("is_manifold_with_boundary", (P("K", C),), "bool",
