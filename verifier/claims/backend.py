@@ -93,7 +93,7 @@ def _abs(x):
 
 def _betti(K: Complex, k=None, p: int = 0):
     if not (isinstance(p, int) and (p == 0 or exact.is_prime(p))):
-        raise EvaluationError(f"betti over Z/p needs p = 0 or a prime p, got {p}")
+        raise EvaluationError(f"betti over Z/p needs a prime p, got {p}")
     numbers = inv.betti(K, k, p=p)
     return tuple(numbers) if k is None else numbers
 
