@@ -439,7 +439,7 @@ def test_recheck_rejects_malformed_tasks_before_starting():
     with pytest.raises(independent.RecheckInputError) as caught:
         independent.recheck([{"statement": "euler(K)", "variables": {}, "seed": 1}])
     assert str(caught.value) == ("task 0: unknown field 'seed'; valid fields are "
-                                 "'statement', 'variables' and 'where'")
+                                 "'statement', 'variables', 'where' and 'witnesses'")
 
 
 def test_recheck_reports_case_errors_per_task_and_reads_tuple_labels():

@@ -56,6 +56,7 @@ from ..claims.enclosure import (Count, Enclosure, enclosure_list, free_energy_va
 from ..claims.values import Indexed
 from ..complex import Complex, ComplexError
 from . import certified as cert
+from . import homology as hom
 from . import matrix as mx
 from .matrix import Matrix
 
@@ -63,7 +64,7 @@ __all__ = [
     "IMPLEMENTATIONS", "NotDecided", "evaluate_claim_independently", "recheck",
     "recheck_run", "RecheckRun", "RecheckError", "RecheckInputError",
     "f_vector", "euler", "wu", "connection", "green", "boundary_matrix", "dirac", "hodge",
-    "signless_hodge", "betti", "curvature", "poincare_hopf_index", "star", "closed_star",
+    "signless_hodge", "betti", "homology", "torsion", "use_witnesses", "curvature", "poincare_hopf_index", "star", "closed_star",
     "link", "unit_sphere", "boundary", "interior", "refine", "join", "cone", "suspension",
     "product", "skeleton", "union", "is_sphere", "is_ball", "is_closed_manifold",
     "is_manifold", "is_manifold_with_boundary",
@@ -384,9 +385,45 @@ def _betti_numbers(K: Complex, p: int = 0) -> tuple[int, ...]:
 
 
 def _prime(p) -> bool:
-    if isinstance(p, bool) or not isinstance(p, int) or p < 2:
-        return False
-    return all(p % q for q in range(2, int(p ** 0.5) + 1))
+    return hom.is_prime(p)
+
+
+# Witnesses handed over with a re-check task (complex key -> morse/1 dict), and the Morse
+# complexes verified from them or built here, for the task being evaluated.
+_WITNESSES: dict[str, dict] = {}
+_MORSE: dict[str, hom.MorseComplex] = {}
+
+
+def use_witnesses(witnesses: dict | None) -> None:
+    """Make ``witnesses`` (complex key -> ``morse/1`` witness) available to
+    :func:`homology`, :func:`torsion` and :func:`betti`; forget earlier ones.
+
+    Keys are :func:`verifier.independent.homology.complex_key` of the complex a witness
+    was made for.  Nothing is trusted: a witness is verified before it is used.
+    """
+    _WITNESSES.clear()
+    _MORSE.clear()
+    _WITNESSES.update(witnesses or {})
+
+
+def _morse(K: Complex) -> hom.MorseComplex:
+    """The verified Morse complex of a large complex: from the witness handed over for
+    it when there is one (verified, never trusted), else from our own collapse matching."""
+    key = hom.complex_key(K.labels, K.facets)
+    if key not in _MORSE:
+        witness = _WITNESSES.get(key)
+        if witness is None:
+            _MORSE[key] = hom.morse_complex(K.facets)
+        else:
+            try:
+                _MORSE[key] = hom.verify_witness(K.facets, witness)
+            except hom.WitnessError as error:
+                raise EvaluationError(f"the homology witness was rejected: {error}") from None
+    return _MORSE[key]
+
+
+def _large(K: Complex) -> bool:
+    return len(K.simplices) >= hom.WITNESS_THRESHOLD
 
 
 def betti(K: Complex, k=None, p=0):
@@ -403,15 +440,62 @@ def betti(K: Complex, k=None, p=0):
     >>> betti(circle), betti(circle, 1), betti(circle, None, 2)
     ((1, 1), 1, (1, 1))
 
-    Notes: one exact elimination per boundary matrix (over Q, or modulo p).
+    Notes: below :data:`~verifier.independent.homology.WITNESS_THRESHOLD` simplices one
+    exact elimination per boundary matrix (over Q, or modulo p); from there on the same
+    eliminations on the Morse complex of a verified witness (or of our own collapse
+    matching), which is chain-homotopy equivalent to K over Z (R. Forman, Adv. Math. 134
+    (1998), Thm. 8.2), hence has the same Betti numbers over every field.
     Reference: J. R. Munkres, Elements of Algebraic Topology, 1984, sec. 5, 7 and 11.
     """
     if p and not _prime(p):
         raise EvaluationError(f"betti over Z/p needs a prime p, got {p}")
-    numbers = _betti_numbers(K, p)
+    numbers = _morse(K).betti(p) if _large(K) else _betti_numbers(K, p)
     if k is None:
         return numbers
     return numbers[k] if 0 <= k < len(numbers) else 0
+
+
+def homology(K: Complex) -> tuple:
+    """Integer homology: one pair (free rank, torsion coefficients) per dimension 0..dim.
+
+    H_k(K; Z) = Z^r + Z/d_1 + ... + Z/d_m with d_1 | ... | d_m, each > 1; the pair is
+    (r, (d_1, ..., d_m)).
+
+    Parameters: ``K`` -- a complex.  Returns: a tuple of pairs (empty for the empty
+    complex).
+
+    >>> homology(Complex.from_facets([[1, 2], [2, 3], [1, 3]]))
+    ((1, ()), (1, ()))
+
+    Notes: below :data:`~verifier.independent.homology.WITNESS_THRESHOLD` simplices from
+    the Smith normal form of the simplicial boundary matrices; from there on from the
+    Morse complex of the witness handed over with the task (verified first: matching,
+    acyclicity, Morse boundary, d o d = 0), or of our own collapse matching when none
+    was.  Reference: J. R. Munkres, Elements of Algebraic Topology, 1984, sec. 11;
+    R. Forman, Adv. Math. 134 (1998) 90-145.
+    """
+    if _large(K):
+        return _morse(K).homology
+    return hom.homology_by_smith(K.facets)
+
+
+def torsion(K: Complex, k) -> tuple:
+    """The torsion coefficients of H_k(K; Z): its invariant factors > 1, increasing.
+
+    Parameters: ``K`` -- a complex; ``k`` -- an integer.  Returns: a tuple of ints
+    (empty outside 0..dim).
+
+    >>> RP2 = [[1, 2, 3], [1, 3, 4], [1, 4, 5], [1, 5, 6], [1, 2, 6], [2, 3, 5],
+    ...        [2, 4, 5], [2, 4, 6], [3, 4, 6], [3, 5, 6]]
+    >>> torsion(Complex.from_facets(RP2), 1)
+    (2,)
+
+    Notes: read off :func:`homology`.  Reference: J. R. Munkres, Elements of Algebraic
+    Topology, 1984, sec. 11 (Smith normal form).
+    """
+    if isinstance(k, bool) or not isinstance(k, int):
+        raise EvaluationError(f"torsion needs an integer degree, got {k}")
+    return hom.torsion_of(homology(K), k)
 
 
 # ------------------------------------------------------------ local geometry
@@ -1131,6 +1215,7 @@ IMPLEMENTATIONS = {
     "trace": _trace, "rank": _rank, "kernel_dim": _kernel_dim, "charpoly": _charpoly,
     "is_reciprocal": _is_reciprocal, "signature": _signature, "positive": _positive,
     "negative": _negative, "multiplicity": _multiplicity, "zeta": _zeta, "betti": betti,
+    "homology": homology, "torsion": torsion,
     "is_manifold": is_manifold, "is_manifold_with_boundary": is_manifold_with_boundary,
     "is_closed_manifold": is_closed_manifold, "curvature": curvature,
     "index": poincare_hopf_index, "star": star, "closed_star": closed_star, "link": link,
@@ -1227,7 +1312,11 @@ def run_task(task: dict) -> dict:
     'holds'
     >>> run_task({"statement": "zeta(hodge(K), 1) == 0", "variables": {"K": [[1]]}})["message"]
     'zeta: matrix is singular'
+
+    A task may carry ``witnesses`` (see :func:`validate_tasks`), verified before use by
+    :func:`homology`, :func:`torsion` and :func:`betti` on large complexes.
     """
+    use_witnesses(task.get("witnesses"))
     try:
         return evaluate_claim_independently(task["statement"], task["variables"],
                                             task.get("where"))
@@ -1270,6 +1359,9 @@ def validate_tasks(tasks) -> list[dict]:
 
     A task is ``{"statement": text, "variables": {name: [[label, ...], ...]},
     "where": text or None}``; labels are integers, strings, or lists of those (tuples).
+    An optional ``"witnesses"`` maps complex keys
+    (:func:`verifier.independent.homology.complex_key`) to ``morse/1`` homology
+    witnesses computed by the main backend; they are verified, never trusted.
 
     >>> validate_tasks([{"statement": "euler(K) == 1", "variables": {"K": [[1]]}}])[0]["where"] is None
     True
@@ -1283,10 +1375,15 @@ def validate_tasks(tasks) -> list[dict]:
         where = f"task {number}"
         if not isinstance(task, dict):
             raise RecheckInputError(f"{where}: expected an object, got {type(task).__name__}")
-        unknown = sorted(set(task) - {"statement", "variables", "where"})
+        unknown = sorted(set(task) - {"statement", "variables", "where", "witnesses"})
         if unknown:
             raise RecheckInputError(f"{where}: unknown field {unknown[0]!r}; valid fields are "
-                                    "'statement', 'variables' and 'where'")
+                                    "'statement', 'variables', 'where' and 'witnesses'")
+        witnesses = task.get("witnesses") or {}
+        if not isinstance(witnesses, dict) or not all(
+                isinstance(k, str) and isinstance(w, dict) for k, w in witnesses.items()):
+            raise RecheckInputError(f"{where}: 'witnesses' must map complex keys to "
+                                    "witness objects")
         if not isinstance(task.get("statement"), str):
             raise RecheckInputError(f"{where}: 'statement' must be the claim's text")
         if task.get("where") is not None and not isinstance(task["where"], str):
@@ -1298,8 +1395,11 @@ def validate_tasks(tasks) -> list[dict]:
             if not isinstance(facets, list) or not all(isinstance(f, list) for f in facets):
                 raise RecheckInputError(f"{where}: variable {name!r} must be a list of facets "
                                         "(lists of labels)")
-        checked.append({"statement": task["statement"], "variables": variables,
-                        "where": task.get("where")})
+        entry = {"statement": task["statement"], "variables": variables,
+                 "where": task.get("where")}
+        if witnesses:
+            entry["witnesses"] = witnesses
+        checked.append(entry)
     return checked
 
 

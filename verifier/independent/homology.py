@@ -56,7 +56,7 @@ import numpy as np
 __all__ = [
     "SCHEME", "WITNESS_THRESHOLD", "WitnessError", "Tables", "MorseComplex",
     "tables_from_facets", "complex_key", "verify_witness", "morse_complex",
-    "collapse_witness", "invariant_factors", "homology_by_smith", "torsion_of",
+    "collapse_witness", "invariant_factors", "homology_by_smith", "torsion_of", "is_prime",
 ]
 
 SCHEME = "morse/1"
@@ -750,3 +750,97 @@ def homology_by_smith(facets) -> tuple:
 def torsion_of(homology: tuple, k: int) -> tuple:
     """The torsion coefficients of H_k in a homology tuple (empty outside 0..dim)."""
     return homology[k][1] if 0 <= k < len(homology) else ()
+
+
+# -------------------------------------------------------------------- primality
+_MR_BASES = (2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37, 41)
+_MR_BOUND = 3_317_044_064_679_887_385_961_981
+
+
+def _strong_probable_prime(n: int, a: int) -> bool:
+    """Miller's test: n - 1 = d 2^s, a^d = 1 or a^(d 2^r) = -1 mod n for some r < s."""
+    d, s = n - 1, 0
+    while d % 2 == 0:
+        d, s = d // 2, s + 1
+    x = pow(a, d, n)
+    if x in (1, n - 1):
+        return True
+    for _ in range(s - 1):
+        x = x * x % n
+        if x == n - 1:
+            return True
+    return False
+
+
+def _jacobi(a: int, n: int) -> int:
+    """The Jacobi symbol (a/n) for odd n > 0, by quadratic reciprocity."""
+    a, result = a % n, 1
+    while a:
+        while a % 2 == 0:
+            a //= 2
+            if n % 8 in (3, 5):
+                result = -result
+        a, n = n, a
+        if a % 4 == 3 and n % 4 == 3:
+            result = -result
+        a %= n
+    return result if n == 1 else 0
+
+
+def _strong_lucas_probable_prime(n: int) -> bool:
+    """The strong Lucas test with Selfridge's parameters (D first of 5, -7, 9, ... with
+    (D/n) = -1, P = 1, Q = (1 - D)/4); n odd, not a square."""
+    if _isqrt(n) ** 2 == n:
+        return False
+    D = 5
+    while True:
+        j = _jacobi(D, n)
+        if j == -1:
+            break
+        if j == 0 and abs(D) != n:
+            return False
+        D = -D - 2 if D > 0 else -D + 2
+    P, Q = 1, (1 - D) // 4
+    d, s = n + 1, 0
+    while d % 2 == 0:
+        d, s = d // 2, s + 1
+    U, V, Qk = 1, P, Q % n
+    for bit in bin(d)[3:]:
+        U, V, Qk = U * V % n, (V * V - 2 * Qk) % n, Qk * Qk % n
+        if bit == "1":
+            U, V = P * U + V, D * U + P * V
+            U, V = (U + n if U % 2 else U) // 2 % n, (V + n if V % 2 else V) // 2 % n
+            Qk = Qk * Q % n
+    if U == 0 or V == 0:
+        return True
+    for _ in range(s - 1):
+        V, Qk = (V * V - 2 * Qk) % n, Qk * Qk % n
+        if V == 0:
+            return True
+    return False
+
+
+def _isqrt(n: int) -> int:
+    from math import isqrt
+    return isqrt(n)
+
+
+def is_prime(p) -> bool:
+    """True when the integer p is a prime.
+
+    Below 3,317,044,064,679,887,385,961,981 Miller's test to the 13 prime bases 2..41 is
+    a proof (J. Sorenson and J. Webster, Math. Comp. 86 (2017) 985-1003); above it, the
+    Baillie-PSW test (Miller base 2 and a strong Lucas test: R. Baillie and S. S.
+    Wagstaff, Math. Comp. 35 (1980) 1391-1417), which has no known counterexample.
+
+    >>> is_prime(2), is_prime(91), is_prime(2 ** 61 + 1), is_prime(2 ** 127 - 1)
+    (True, False, False, True)
+    """
+    if isinstance(p, bool) or not isinstance(p, int) or p < 2:
+        return False
+    for q in _MR_BASES:
+        if p % q == 0:
+            return p == q
+    if p < _MR_BOUND:
+        return all(_strong_probable_prime(p, a) for a in _MR_BASES)
+    return _strong_probable_prime(p, 2) and _strong_lucas_probable_prime(p)
