@@ -35,6 +35,7 @@ from verifier.complex import Complex  # noqa: E402
 from verifier.exact import Matrix, signature  # noqa: E402
 from verifier.exact import charpoly_is_reciprocal  # noqa: E402
 from verifier.families import catalog  # noqa: E402
+from bench.homology import BENCHMARKS as HOMOLOGY_BENCHMARKS  # noqa: E402
 
 RESULTS = ROOT / "bench" / "results.json"
 
@@ -492,6 +493,7 @@ BENCHMARKS = {
     "paper-scale": bench_paper_scale,
     "certified-zeta": bench_certified_zeta,
 }
+BENCHMARKS.update(HOMOLOGY_BENCHMARKS)
 
 
 def main(argv=None) -> int:
@@ -511,6 +513,11 @@ def main(argv=None) -> int:
         note = ""
         if name == "signature-r2":
             note = f"vs Descartes on exact charpoly: {row['ratio_vs_descartes']:.0f}x"
+        if name.startswith("homology-"):
+            note = f"{row['size']} simplices, {row['homology']}; target {row['target']}"
+            if "peak_rss_gb" in row:
+                note += (f"; build {row['build_s']:.1f} s + homology {row['homology_s']:.1f} s,"
+                         f" peak {row['peak_rss_gb']:.1f} GB")
         if name == "green-torus-r3":
             note = "target: ours under 10 s"
         if name == "campaign-1e6":
