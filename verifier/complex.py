@@ -40,6 +40,8 @@ import scipy.sparse as sp
 __all__ = ["Complex", "ComplexError", "CANONICAL_MAX_VERTICES"]
 
 CANONICAL_MAX_VERTICES = 10
+SMALL_INPUT = 2_000     # inputs up to this many labels (or simplices) take the plain-Python
+                        # paths; larger ones the vectorised paths (same results)
 
 
 class ComplexError(ValueError):
@@ -115,14 +117,27 @@ class Complex:
                 raise ComplexError(f"facet {position}: repeated vertex in {members!r}")
             if members:
                 raw.append(members)
-        labels = _sort_labels(v for f in raw for v in f)
-        position = {v: i for i, v in enumerate(labels)}
-        return cls._from_index_sets(labels, (tuple(sorted(position[v] for v in f)) for f in raw))
+        flat = list(chain.from_iterable(raw))
+        if len(flat) <= SMALL_INPUT:
+            labels = _sort_labels(flat)
+            position = {v: i for i, v in enumerate(labels)}
+            return cls._from_index_sets(labels, (tuple(sorted(position[v] for v in f))
+                                                 for f in raw))
+        labels, indices = _label_indices(flat)
+        sizes = np.fromiter(map(len, raw), dtype=np.int64, count=len(raw))
+        return cls._from_arrays(labels, _close_downward(len(labels), _facet_groups(indices, sizes)))
 
     @classmethod
     def _from_index_sets(cls, labels: tuple, sets: Iterable[tuple[int, ...]]) -> "Complex":
         """Close sorted index tuples downward and order the result."""
         maximal = set(sets)
+        if sum(map(len, maximal)) > SMALL_INPUT:
+            groups: dict[int, list] = {}
+            for s in maximal:
+                groups.setdefault(len(s), []).append(s)
+            arrays = {w: np.array(g, dtype=np.int64).reshape(len(g), w)
+                      for w, g in groups.items() if w}
+            return cls._from_arrays(labels, _close_downward(len(labels), arrays))
         closed: set[tuple[int, ...]] = set()
         for s in sorted(maximal, key=len, reverse=True):
             if s in closed:
@@ -132,6 +147,20 @@ class Complex:
         for v in range(len(labels)):
             closed.add((v,))
         return cls(labels, tuple(sorted(closed, key=lambda s: (len(s), s))))
+
+    @classmethod
+    def _from_arrays(cls, labels: tuple, levels: list[np.ndarray]) -> "Complex":
+        """The complex whose k-simplices are the rows of ``levels[k]`` (int arrays of
+        shape (f_k, k + 1), rows sorted, in lexicographic order, the levels closed
+        downward).  The arrays are kept as :meth:`simplex_array`."""
+        simplices = tuple(chain.from_iterable(map(tuple, a.tolist()) for a in levels))
+        K = cls(labels, simplices)
+        for k, array in enumerate(levels):
+            array = np.ascontiguousarray(array, dtype=np.int64)
+            array.flags.writeable = False
+            K._cache[("simplex_array", k)] = array
+        K._cache["f_vector"] = tuple(len(a) for a in levels)
+        return K
 
     @classmethod
     def from_simplices(cls, simplices: Iterable[Iterable[Hashable]]) -> "Complex":
@@ -247,6 +276,12 @@ class Complex:
     def facets(self) -> tuple[tuple[int, ...], ...]:
         """The maximal simplices, in simplex order."""
         def compute():
+            if len(self.simplices) > SMALL_INPUT:
+                covered = np.zeros(len(self.simplices), dtype=bool)
+                for k in range(1, self.dim + 1):
+                    covered[self.face_positions(k).ravel()] = True
+                simplices = self.simplices
+                return tuple(simplices[i] for i in np.flatnonzero(~covered).tolist())
             covered = set()
             for s in self.simplices:
                 if len(s) > 1:
@@ -283,12 +318,16 @@ class Complex:
         """The pairs (simplex position, vertex index) with the vertex in the simplex,
         as two parallel int64 arrays (the nonzeros of the simplex-vertex incidence matrix)."""
         def compute():
-            sizes = np.fromiter((len(s) for s in self.simplices), dtype=np.int64,
-                                count=len(self.simplices))
-            rows = np.repeat(np.arange(len(self.simplices), dtype=np.int64), sizes)
-            cols = np.fromiter(chain.from_iterable(self.simplices), dtype=np.int64,
-                               count=int(sizes.sum()))
-            return rows, cols
+            offsets = self.dimension_offsets()
+            rows, cols = [], []
+            for k in range(self.dim + 1):
+                S = self.simplex_array(k)
+                rows.append(np.repeat(np.arange(offsets[k], offsets[k + 1], dtype=np.int64),
+                                      k + 1))
+                cols.append(S.ravel())
+            if not rows:
+                return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64)
+            return np.concatenate(rows), np.concatenate(cols)
         return self._cached("vertex_incidence", compute)
 
     def containments(self) -> tuple[np.ndarray, np.ndarray]:
@@ -297,25 +336,26 @@ class Complex:
         Returned as two parallel int64 arrays ``(faces, cofaces)``; there are
         sum over z of (2^|z| - 1) pairs.  This is the incidence structure of the face
         poset, from which the connection matrix, its factorisation and the Green
-        function are built.  Computed without enumerating subsets: x is a face of z
-        exactly when x and z share |x| vertices, read off from V V^T with V the
-        simplex-vertex incidence matrix.
+        function are built.  Computed by looking every subset of every simplex up among the simplices of its
+        dimension (a vectorised binary search over lexicographic row keys); the pairs
+        come grouped by the coface's dimension and by subset.
         """
         def compute():
-            n = len(self.simplices)
-            rows, cols = self.vertex_incidence()
-            sizes = np.bincount(rows, minlength=n)
-            if n * n <= 250_000:
-                V = np.zeros((n, self.n_vertices), dtype=np.float64)
-                V[rows, cols] = 1.0
-                shared = V @ V.T                     # small integers: exact in floating point
-                faces, cofaces = np.nonzero(shared == sizes[:, None])
-            else:
-                V = sp.csr_array((np.ones(len(rows)), (rows, cols)), shape=(n, self.n_vertices))
-                shared = (V @ V.T).tocoo()
-                keep = shared.data == sizes[shared.row]
-                faces, cofaces = shared.row[keep], shared.col[keep]
-            return faces.astype(np.int64), cofaces.astype(np.int64)
+            offsets = self.dimension_offsets()
+            keys = [_row_keys(self.simplex_array(j), self.n_vertices) for j in range(self.dim + 1)]
+            faces, cofaces = [], []
+            for k in range(self.dim + 1):
+                S = self.simplex_array(k)
+                positions = np.arange(offsets[k], offsets[k + 1], dtype=np.int64)
+                for width in range(1, k + 2):
+                    for columns in combinations(range(k + 1), width):
+                        face = S[:, list(columns)]
+                        found = np.searchsorted(keys[width - 1], _row_keys(face, self.n_vertices))
+                        faces.append(found + offsets[width - 1])
+                        cofaces.append(positions)
+            if not faces:
+                return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64)
+            return np.concatenate(faces), np.concatenate(cofaces)
         return self._cached("containments", compute)
 
     def dimension_offsets(self) -> tuple[int, ...]:
@@ -362,12 +402,23 @@ class Complex:
     def vertex_stars(self) -> tuple[tuple[int, ...], ...]:
         """For each vertex, the positions of the simplices that contain it."""
         def compute():
-            stars = [[] for _ in self.labels]
-            for j, s in enumerate(self.simplices):
-                for v in s:
-                    stars[v].append(j)
-            return tuple(tuple(s) for s in stars)
+            start, members = self.vertex_star_arrays()
+            members = members.tolist()
+            bounds = start.tolist()
+            return tuple(tuple(members[a:b]) for a, b in zip(bounds, bounds[1:]))
         return self._cached("vertex_stars", compute)
+
+    def vertex_star_arrays(self) -> tuple[np.ndarray, np.ndarray]:
+        """The vertex stars as arrays ``(start, members)``: the simplices containing vertex
+        v are ``members[start[v]:start[v + 1]]``, in simplex order (int64, n + 1 and
+        sum |z| entries)."""
+        def compute():
+            rows, cols = self.vertex_incidence()
+            order = np.argsort(cols, kind="stable")       # rows ascend: stars stay in order
+            counts = np.bincount(cols, minlength=self.n_vertices)
+            start = np.concatenate([[0], np.cumsum(counts)]).astype(np.int64)
+            return start, rows[order]
+        return self._cached("vertex_star_arrays", compute)
 
     def graph(self):
         """The 1-skeleton as a networkx graph on vertex indices 0..n-1."""
@@ -430,7 +481,8 @@ class Complex:
                 payload = {"canonical": [list(f) for f in self.canonical_form()],
                            "n": self.n_vertices}
             else:
-                payload = {"invariant": _refinement_invariant(self), "f": list(self.f_vector)}
+                payload = {"colour-refinement": _refinement_invariant(self),
+                           "f": list(self.f_vector)}
             text = json.dumps(payload, separators=(",", ":"), sort_keys=True)
             return hashlib.sha256(text.encode()).hexdigest()
         return self._cached("content_hash", compute)
@@ -455,6 +507,84 @@ def _row_keys(rows: np.ndarray, n_vertices: int) -> np.ndarray:
         return keys
     packed = np.ascontiguousarray(rows.astype(">u4"))
     return packed.view(np.dtype((np.void, 4 * width))).ravel()
+
+
+# ------------------------------------------------------------------------------
+# Vectorised construction (large inputs): simplices as int64 arrays, one per dimension.
+
+def _label_indices(flat: list) -> tuple[tuple, np.ndarray]:
+    """The sorted distinct labels of a flat list, and each entry's position among them.
+
+    Plain Python integers (the common case: refinements, files, generators) are sorted
+    and numbered with numpy; any other labels through :func:`_sort_labels`.
+    """
+    if set(map(type, flat)) == {int}:
+        try:
+            values = np.array(flat, dtype=np.int64)
+        except OverflowError:
+            values = None
+        if values is not None:
+            distinct, inverse = np.unique(values, return_inverse=True)
+            return tuple(distinct.tolist()), inverse.astype(np.int64).ravel()
+    labels = _sort_labels(flat)
+    position = {v: i for i, v in enumerate(labels)}
+    return labels, np.fromiter(map(position.__getitem__, flat), dtype=np.int64,
+                               count=len(flat))
+
+
+def _facet_groups(indices: np.ndarray, sizes: np.ndarray) -> dict[int, np.ndarray]:
+    """Split the concatenated vertex indices of the given sets by size: {size: array of
+    shape (count, size) with sorted rows}; empty sets are dropped."""
+    starts = np.concatenate([[0], np.cumsum(sizes)[:-1]]).astype(np.int64)
+    groups = {}
+    for width in np.unique(sizes).tolist():
+        if width == 0:
+            continue
+        first = starts[sizes == width]
+        rows = indices[first[:, None] + np.arange(width)]
+        groups[width] = np.sort(rows, axis=1)
+    return groups
+
+
+def _unique_sorted_rows(rows: np.ndarray, n_vertices: int) -> np.ndarray:
+    """The distinct rows of an int array of sorted vertex tuples, in lexicographic order."""
+    if len(rows) == 0:
+        return rows
+    width = rows.shape[1]
+    if max(n_vertices, 2) ** width < 2 ** 63:
+        keys = _row_keys(rows, n_vertices)
+        _, first = np.unique(keys, return_index=True)   # sorted keys = lexicographic rows
+        return rows[first]
+    rows = rows[np.lexsort(rows.T[::-1])]
+    keep = np.ones(len(rows), dtype=bool)
+    keep[1:] = np.any(rows[1:] != rows[:-1], axis=1)
+    return rows[keep]
+
+
+def _close_downward(n_vertices: int, groups: dict[int, np.ndarray]) -> list[np.ndarray]:
+    """The downward closure of the given sets, one sorted array per dimension.
+
+    Top-down: the k-simplices are the given sets with k + 1 vertices together with the
+    codimension-one faces of the (k+1)-simplices, so every face is generated about as
+    many times as it has cofaces (not once per superset, as enumerating all subsets
+    would).  Every vertex 0..n-1 is a 0-simplex.
+    """
+    top = max(groups, default=1)
+    levels: list[np.ndarray] = []
+    above = np.zeros((0, top + 1), dtype=np.int64)
+    for width in range(top, 0, -1):
+        parts = [np.delete(above, i, axis=1) for i in range(width + 1)] if len(above) else []
+        if width in groups:
+            parts.append(groups[width])
+        if width == 1:
+            parts.append(np.arange(n_vertices, dtype=np.int64)[:, None])
+        above = _unique_sorted_rows(np.concatenate(parts) if parts else
+                                    np.zeros((0, width), dtype=np.int64), n_vertices)
+        levels.append(above)
+    levels.reverse()
+    while levels and len(levels[-1]) == 0:
+        levels.pop()
+    return levels
 
 
 # ------------------------------------------------------------------------------
@@ -539,14 +669,43 @@ def _canonical_form(K: Complex) -> tuple[tuple[int, ...], ...]:
     return best if best is not None else ()
 
 
-def _refinement_invariant(K: Complex, rounds: int = 6) -> list:
-    """Colour refinement on the vertex-simplex incidence: a sorted multiset of colours."""
-    colour = {v: (len(K.vertex_stars()[v]),) for v in range(K.n_vertices)}
+def _mix(x: np.ndarray) -> np.ndarray:
+    """A fixed bijective scrambling of 64-bit words (the finaliser of SplitMix64,
+    G. L. Steele, D. Lea and C. H. Flood, OOPSLA 2014), applied elementwise."""
+    x = x.astype(np.uint64, copy=True)
+    x ^= x >> np.uint64(30)
+    x *= np.uint64(0xBF58476D1CE4E5B9)
+    x ^= x >> np.uint64(27)
+    x *= np.uint64(0x94D049BB133111EB)
+    x ^= x >> np.uint64(31)
+    return x
+
+
+def _refinement_invariant(K: Complex, rounds: int = 6) -> str:
+    """Colour refinement on the vertex-simplex incidence: a digest of the multiset of
+    vertex colours.
+
+    A vertex starts with the size of its star.  Each round, a simplex is coloured by the
+    sorted tuple of its vertices' colours, and a vertex by its own colour together with
+    the multiset of the colours of the simplices in its star.  Colours are 64-bit words
+    (tuples are folded in order through :func:`_mix`, multisets by wrapping sums of
+    mixed words), so the result depends on the complex only up to isomorphism.  Every
+    round is a few vectorised passes over the simplex arrays.
+    """
+    n = K.n_vertices
+    start, members = K.vertex_star_arrays()
+    colour = _mix(np.diff(start).astype(np.uint64))
+    offsets = K.dimension_offsets()
+    prime = np.uint64(0x100000001B3)
     for _ in range(rounds):
-        new = {}
-        for v in range(K.n_vertices):
-            around = sorted(tuple(sorted(colour[w] for w in K.simplices[j]))
-                            for j in K.vertex_stars()[v])
-            new[v] = hashlib.sha256(repr((colour[v], around)).encode()).hexdigest()[:16]
-        colour = new
-    return sorted(colour.values())
+        simplex_colour = np.empty(len(K.simplices), dtype=np.uint64)
+        for k in range(K.dim + 1):
+            C = np.sort(colour[K.simplex_array(k)], axis=1)
+            h = np.full(len(C), k + 1, dtype=np.uint64)
+            for column in range(k + 1):
+                h = _mix(h * prime + C[:, column])
+            simplex_colour[offsets[k]:offsets[k + 1]] = h
+        spread = _mix(simplex_colour[members] ^ np.uint64(0x9E3779B97F4A7C15))
+        around = np.add.reduceat(spread, start[:-1]) if n else spread[:0]
+        colour = _mix(colour * prime + _mix(around))
+    return hashlib.sha256(np.sort(colour).astype("<u8").tobytes()).hexdigest()
