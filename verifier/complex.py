@@ -35,7 +35,6 @@ from itertools import chain, combinations
 from pathlib import Path
 
 import numpy as np
-import scipy.sparse as sp
 
 __all__ = ["Complex", "ComplexError", "CANONICAL_MAX_VERTICES"]
 
@@ -107,25 +106,33 @@ class Complex:
 
         Vertex labels may be any hashable values; the empty set is ignored.
         """
-        raw = []
+        raw, places = [], []
         for position, facet in enumerate(facets):
             if isinstance(facet, (str, bytes)) or not isinstance(facet, Iterable):
+                _check_repeats(raw, places)          # an earlier error is reported first
                 raise ComplexError(
                     f"facet {position}: expected a list of vertex labels, got {facet!r}")
             members = list(facet)
-            if len(set(members)) != len(members):
-                raise ComplexError(f"facet {position}: repeated vertex in {members!r}")
             if members:
                 raw.append(members)
+                places.append(position)
         flat = list(chain.from_iterable(raw))
         if len(flat) <= SMALL_INPUT:
+            _check_repeats(raw, places)
             labels = _sort_labels(flat)
             position = {v: i for i, v in enumerate(labels)}
             return cls._from_index_sets(labels, (tuple(sorted(position[v] for v in f))
                                                  for f in raw))
         labels, indices = _label_indices(flat)
         sizes = np.fromiter(map(len, raw), dtype=np.int64, count=len(raw))
-        return cls._from_arrays(labels, _close_downward(len(labels), _facet_groups(indices, sizes)))
+        groups = _facet_groups(indices, sizes)
+        repeated = [np.flatnonzero(sizes == width)[np.any(rows[:, 1:] == rows[:, :-1], axis=1)]
+                    for width, rows in groups.items()]
+        repeated = np.concatenate(repeated) if repeated else np.zeros(0, dtype=np.int64)
+        if len(repeated):
+            first = int(repeated.min())
+            raise ComplexError(f"facet {places[first]}: repeated vertex in {raw[first]!r}")
+        return cls._from_arrays(labels, _close_downward(len(labels), groups))
 
     @classmethod
     def _from_index_sets(cls, labels: tuple, sets: Iterable[tuple[int, ...]]) -> "Complex":
@@ -153,7 +160,8 @@ class Complex:
         """The complex whose k-simplices are the rows of ``levels[k]`` (int arrays of
         shape (f_k, k + 1), rows sorted, in lexicographic order, the levels closed
         downward).  The arrays are kept as :meth:`simplex_array`."""
-        simplices = tuple(chain.from_iterable(map(tuple, a.tolist()) for a in levels))
+        simplices = tuple(chain.from_iterable(
+            zip(*(a[:, i].tolist() for i in range(a.shape[1]))) for a in levels))
         K = cls(labels, simplices)
         for k, array in enumerate(levels):
             array = np.ascontiguousarray(array, dtype=np.int64)
@@ -507,6 +515,13 @@ def _row_keys(rows: np.ndarray, n_vertices: int) -> np.ndarray:
         return keys
     packed = np.ascontiguousarray(rows.astype(">u4"))
     return packed.view(np.dtype((np.void, 4 * width))).ravel()
+
+
+def _check_repeats(raw: list[list], places: list[int]) -> None:
+    """ComplexError naming the first set with a repeated vertex, if there is one."""
+    for members, position in zip(raw, places):
+        if len(set(members)) != len(members):
+            raise ComplexError(f"facet {position}: repeated vertex in {members!r}")
 
 
 # ------------------------------------------------------------------------------
