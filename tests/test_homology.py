@@ -333,3 +333,71 @@ def test_p_must_be_zero_or_a_prime():
 def test_torsion_needs_an_integer_degree():
     with pytest.raises(ExactError, match="torsion needs an integer degree k"):
         torsion(catalog.complex("projective-plane-6"), "1")
+
+
+# ------------------------------------------------------------ in the claim language
+def _language(statement: str, K: Complex):
+    from verifier.claims.evaluate import Context, evaluate
+    from verifier.claims.expression import parse
+
+    return evaluate(parse(statement, {"K": "complex"}), {"K": K}, Context())
+
+
+def test_homology_and_torsion_in_the_claim_language():
+    # Hatcher (2002), Example 2.42: H_1(RP^3) = Z/2; Example 2.43: H_1(L(5, 2)) = Z/5
+    assert _language("homology(K)", catalog.complex("projective-space-3-11")) == \
+        ((1, ()), (0, (2,)), (0, ()), (1, ()))
+    assert _language("torsion(K, 1)", catalog.complex("lens-5-2")) == (5,)
+    assert _language("betti(K, 1, 5)", catalog.complex("lens-5-2")) == 1   # Z/5 (x) Z/5
+    assert _language("homology(K)[1][1] == torsion(K, 1)", catalog.complex("lens-5-2"))
+
+
+def test_a_non_complex_argument_is_refused_when_the_statement_is_checked():
+    from verifier.claims.errors import ClaimError
+    from verifier.claims.expression import parse
+
+    with pytest.raises(ClaimError, match="homology"):
+        parse("homology(connection(K)) == 1", {"K": "complex"})
+    with pytest.raises(ClaimError, match="torsion"):
+        parse("torsion(K) == 1", {"K": "complex"})
+
+
+def test_a_prime_is_required_for_betti_over_Z_mod_p_in_the_claim_language():
+    from verifier.claims.errors import EvaluationError
+
+    with pytest.raises(EvaluationError, match="betti over Z/p needs a prime p, got 6"):
+        _language("betti(K, 1, 6)", catalog.complex("torus-7"))
+
+
+def test_a_complex_too_large_for_memory_is_refused_before_it_is_built():
+    # the size is predicted from the f-vector (verifier.sizes), so this answers at once
+    import time
+
+    from verifier.claims.errors import EvaluationError
+
+    start = time.perf_counter()
+    with pytest.raises(EvaluationError, match=r"refine: the result would have "
+                                              r"[0-9,]+ simplices, more than the limit"):
+        _language("homology(refine(refine(K, 4), 4))", catalog.complex("torus-7"))
+    with pytest.raises(EvaluationError, match="product: the result would have"):
+        _language("homology(product(product(K, K), K))", catalog.complex("torus-7"))
+    with pytest.raises(EvaluationError, match="join: the result would have"):
+        _language("homology(join(join(refine(K, 3), K), refine(K, 2)))",
+                  catalog.complex("torus-7"))
+    assert time.perf_counter() - start < 10
+
+
+def test_predicted_sizes_are_the_sizes_of_the_constructions():
+    # f(sd K) = sum_i f_i (j+1)! S(i+1, j+1): Brenti and Welker, Math. Z. 259 (2008);
+    # checked here against the constructions themselves
+    from verifier import sizes
+
+    for name in ["torus-7", "projective-plane-6", "sphere-3", "dunce-hat-8"]:
+        K = catalog.complex(name)
+        for times in (1, 2):
+            assert sizes.refined_f_vector(K.f_vector, times) == refine(K, times).f_vector
+        for other in ["sphere-1", "moebius-strip-5", "ball-2"]:
+            H = catalog.complex(other)
+            assert sizes.product_size(K.f_vector, H.f_vector) == len(product(K, H).simplices)
+            assert sizes.join_size(len(K.simplices), len(H.simplices)) == \
+                len(join(K, H).simplices)
