@@ -9,6 +9,10 @@ Every function returns exact values.  Fast paths propose and an exact check deci
 * ``unit_ldl``: symmetric elimination without pivoting that succeeds only when every
   pivot is +1 or -1; then ``M = U^T D U`` with U integral unitriangular, which gives
   the determinant and (Sylvester's law of inertia) the signature exactly.
+* ``congruence_holds``: a proposed factorisation M = Z^T diag(d) Z with Z integral and
+  unitriangular is checked entry by entry in exact integers (a compiled kernel that
+  never forms the product); when it holds, Sylvester's law of inertia gives the
+  signature and det M = prod d, with the factorisation as the witness.
 * ``charpoly_is_reciprocal``: exact for small matrices; for large ones a randomized
   identity test modulo random 63-bit primes whose 'not reciprocal' answers carry an
   exact witness and whose 'reciprocal' answers carry a stated error bound.
@@ -30,6 +34,7 @@ __all__ = [
     "Verdict", "det", "rank", "rank_mod", "inverse", "inverse_many", "verified_inverse_batch", "is_inverse", "charpoly",
     "charpoly_of_square", "signature", "unit_ldl", "multiplicity", "kernel_dim",
     "charpoly_is_reciprocal", "invariant_factors", "FLOAT_PROPOSAL_MAX",
+    "congruence_holds", "gram_support_congruence_holds", "inverse_by_congruence",
 ]
 
 FLOAT_PROPOSAL_MAX = 2500       # largest order for which a float inverse is proposed
@@ -101,10 +106,16 @@ def unit_ldl(M: Matrix) -> list[int] | None:
 
 
 def det(M: Matrix):
-    """Exact determinant (int or Fraction)."""
+    """Exact determinant (int or Fraction).
+
+    A verified unitriangular congruence M = Z^T diag(d) Z gives det M = prod d.
+    """
     _square(M, "det")
     if M.shape[0] == 0:
         return 1
+    factor = _proposed_congruence(M)
+    if factor is not None and congruence_holds(M, *factor):
+        return _product(factor[1].tolist())
     if M.is_int64 and M.is_symmetric():
         pivots = unit_ldl(M)
         if pivots is not None:
@@ -343,11 +354,18 @@ def _descartes_signature(p: Poly) -> tuple[int, int, int]:
 def signature(M: Matrix) -> tuple[int, int, int]:
     """Numbers of positive, negative and zero eigenvalues of a symmetric rational matrix.
 
-    Method: Sylvester's law of inertia on the elimination M = U^T D U when every pivot
-    is +-1 (``unit_ldl``); otherwise Descartes' rule of signs on the exact characteristic
+    Method: Sylvester's law of inertia on a congruence M = Z^T D Z, Z unitriangular:
+    the one the matrix carries (:attr:`Matrix.congruence`) once :func:`congruence_holds`
+    has verified it exactly, or the elimination M = U^T D U when every pivot is +-1
+    (``unit_ldl``); otherwise Descartes' rule of signs on the exact characteristic
     polynomial (exact since a symmetric matrix has only real eigenvalues).
     """
     _square(M, "signature")
+    factor = _proposed_congruence(M)
+    if factor is not None and congruence_holds(M, *factor):
+        d = factor[1]
+        return (int(np.count_nonzero(d > 0)), int(np.count_nonzero(d < 0)),
+                int(np.count_nonzero(d == 0)))
     if not M.is_symmetric():
         raise ExactError("signature needs a symmetric matrix")
     if M.is_int64:
@@ -458,3 +476,232 @@ def charpoly_is_reciprocal(M: Matrix, *, square: bool = False, trials: int = 3,
     per_trial = Fraction(degree, 1 << 62) + Fraction(prime_factors, 10 ** 17)
     return Verdict(True, "probabilistic", f"randomized identity test, {trials} trials mod random "
                    "63-bit primes", error_bound=per_trial ** trials, witness={"checks": checks})
+
+
+# ------------------------------------------------------------- congruences
+def _product(values) -> int:
+    result = 1
+    for v in values:
+        result *= int(v)
+    return result
+
+
+CONGRUENCE_MIN = 2_000   # matrices of at least this order use a congruence they carry
+
+
+def _proposed_congruence(M: Matrix) -> tuple | None:
+    """The factorisation (Z, d) a large matrix carries (built on demand), or None."""
+    if M.congruence is None or M.shape[0] < CONGRUENCE_MIN:
+        return None
+    Z, d = M.congruence() if callable(M.congruence) else M.congruence
+    return Z, np.asarray(d, dtype=np.int64)
+
+
+_KERNELS: dict = {}
+
+
+def _kernels() -> dict:
+    """The compiled kernels (numba), compiled on first use and cached on disk."""
+    if _KERNELS:
+        return _KERNELS
+    import numba
+
+    @numba.njit(cache=True)
+    def congruence_rows(n, col_ptr, col_idx, col_val, row_ptr, row_idx, row_val, d,
+                        m_ptr, m_idx, m_val):
+        """For every x, row x of Z^T diag(d) Z minus row x of M is zero (Z given by
+        columns and by rows, M by rows); int64 throughout, sums bounded by the caller."""
+        acc = np.zeros(n, dtype=np.int64)
+        seen = np.zeros(n, dtype=np.bool_)
+        touched = np.empty(n, dtype=np.int64)
+        for x in range(n):
+            t = 0
+            for a in range(col_ptr[x], col_ptr[x + 1]):
+                z = col_idx[a]
+                c = col_val[a] * d[z]
+                for b in range(row_ptr[z], row_ptr[z + 1]):
+                    y = row_idx[b]
+                    if not seen[y]:
+                        seen[y] = True
+                        touched[t] = y
+                        t += 1
+                    acc[y] += c * row_val[b]
+            for b in range(m_ptr[x], m_ptr[x + 1]):
+                y = m_idx[b]
+                if not seen[y]:
+                    seen[y] = True
+                    touched[t] = y
+                    t += 1
+                acc[y] -= m_val[b]
+            ok = True
+            for i in range(t):
+                y = touched[i]
+                if acc[y] != 0:
+                    ok = False
+                acc[y] = 0
+                seen[y] = False
+            if not ok:
+                return False
+        return True
+
+    @numba.njit(cache=True)
+    def gram_support_rows(n, a_ptr, a_idx, at_ptr, at_idx, col_ptr, col_idx, col_val,
+                          row_ptr, row_idx, row_val, d):
+        """For every x, row x of Z^T diag(d) Z is the 0/1 row of support(A A^T): 1 on
+        the y sharing a column with x in A, 0 elsewhere."""
+        acc = np.zeros(n, dtype=np.int64)
+        seen = np.zeros(n, dtype=np.bool_)
+        touched = np.empty(n, dtype=np.int64)
+        for x in range(n):
+            t = 0
+            for a in range(a_ptr[x], a_ptr[x + 1]):
+                v = a_idx[a]
+                for b in range(at_ptr[v], at_ptr[v + 1]):
+                    y = at_idx[b]
+                    if not seen[y]:
+                        seen[y] = True
+                        touched[t] = y
+                        t += 1
+                        acc[y] -= 1
+            for a in range(col_ptr[x], col_ptr[x + 1]):
+                z = col_idx[a]
+                c = col_val[a] * d[z]
+                for b in range(row_ptr[z], row_ptr[z + 1]):
+                    y = row_idx[b]
+                    if not seen[y]:
+                        seen[y] = True
+                        touched[t] = y
+                        t += 1
+                    acc[y] += c * row_val[b]
+            ok = True
+            for i in range(t):
+                y = touched[i]
+                if acc[y] != 0:
+                    ok = False
+                acc[y] = 0
+                seen[y] = False
+            if not ok:
+                return False
+        return True
+
+    _KERNELS.update(congruence_rows=congruence_rows, gram_support_rows=gram_support_rows)
+    return _KERNELS
+
+
+def _csr_parts(A):
+    """(indptr, indices, data) of a scipy CSR array, as they are (int32 or int64 index
+    arrays; the kernels are compiled for either)."""
+    return A.indptr, A.indices, np.asarray(A.data, dtype=np.int64)
+
+
+def _unitriangular_factor(Z: Matrix, d) -> tuple | None:
+    """Z as (columns, rows) CSR parts if Z is an integral upper unitriangular int64
+    matrix of the order of d and |d| is small enough for the kernels; else None."""
+    n = Z.shape[0]
+    if not Z.is_int64 or Z.shape != (n, n) or len(d) != n:
+        return None
+    R = Z.to_scipy().tocsr()
+    R.sum_duplicates()
+    coo = R.tocoo()
+    if np.any(coo.row > coo.col):
+        return None                                     # not upper triangular
+    diagonal = coo.row == coo.col
+    if int(diagonal.sum()) != n or np.any(coo.data[diagonal] != 1):
+        return None                                     # not unitriangular
+    return _csr_parts(R.T.tocsr()), _csr_parts(R)
+
+
+def _fits(Z: Matrix, d, extra: int, columns: np.ndarray) -> bool:
+    """Every partial sum of (Z^T diag(d) Z)[x, y] - extra stays below 2^62."""
+    longest = int(np.diff(columns).max()) if len(columns) > 1 else 0
+    largest_d = int(np.abs(d).max()) if len(d) else 0
+    return Z.max_abs() ** 2 * largest_d * longest + extra < SAFE
+
+
+def congruence_holds(M: Matrix, Z: Matrix, d) -> bool:
+    """Exact check that M = Z^T diag(d) Z with Z integral upper unitriangular.
+
+    Then det Z = 1, so M and diag(d) are congruent: det M = prod d and (Sylvester's law
+    of inertia) M has as many positive, negative and zero eigenvalues as d has positive,
+    negative and zero entries.  The check runs row by row: row x of Z^T diag(d) Z is
+    accumulated from the faces z of x (column x of Z) and their rows, row x of M is
+    subtracted, and every touched entry must vanish -- in int64, after a bound proves
+    that no partial sum reaches 2^62.  Cost: sum over x of sum over z in column x of
+    |row z|, with memory O(order); the product itself is never stored.
+
+    >>> Z = Matrix.from_rows([[1, 1], [0, 1]])
+    >>> congruence_holds(Matrix.from_rows([[1, 1], [1, 0]]), Z, [1, -1])
+    True
+    >>> congruence_holds(Matrix.from_rows([[1, 1], [1, 1]]), Z, [1, -1])
+    False
+
+    Reference: J. J. Sylvester, "A demonstration of the theorem that every homogeneous
+    quadratic polynomial is reducible by real orthogonal substitutions to the form of a
+    sum of positive and negative squares", Phil. Mag. 4 (1852) 138-142.
+    """
+    d = np.asarray(d, dtype=np.int64)
+    if not (M.is_int64 and M.shape == Z.shape):
+        return False
+    factor = _unitriangular_factor(Z, d)
+    if factor is None:
+        return False
+    columns, rows = factor
+    if not _fits(Z, d, M.max_abs(), columns[0]):
+        return False
+    m = M.to_scipy().tocsr()
+    return bool(_kernels()["congruence_rows"](M.shape[0], *columns, *rows, d, *_csr_parts(m)))
+
+
+def gram_support_congruence_holds(A: Matrix, Z: Matrix, d) -> bool:
+    """Exact check that the 0/1 matrix support(A A^T) equals Z^T diag(d) Z, for a
+    nonnegative integer matrix A and Z integral upper unitriangular.
+
+    For A the simplex-vertex incidence, support(A A^T) is the connection matrix (x and
+    y meet when they share a vertex): this verifies its factorisation without storing
+    it.  Row x of support(A A^T) is the union of the columns' supports over the nonzeros
+    of row x of A; the rest is as in :func:`congruence_holds`.
+
+    >>> A = Matrix.from_rows([[1, 0], [0, 1], [1, 1]])        # the vertices and the edge
+    >>> Z = Matrix.from_rows([[1, 0, 1], [0, 1, 1], [0, 0, 1]])
+    >>> gram_support_congruence_holds(A, Z, [1, 1, -1])
+    True
+    """
+    d = np.asarray(d, dtype=np.int64)
+    n = Z.shape[0]
+    if not (A.is_int64 and A.shape[0] == n) or (A.nnz() and A.to_scipy().data.min() < 0):
+        return False
+    factor = _unitriangular_factor(Z, d)
+    if factor is None:
+        return False
+    columns, rows = factor
+    if not _fits(Z, d, 1, columns[0]):
+        return False
+    a = A.to_scipy().tocsr()
+    a.eliminate_zeros()
+    at = a.T.tocsr()
+    return bool(_kernels()["gram_support_rows"](n, *_csr_parts(a)[:2], *_csr_parts(at)[:2],
+                                                *columns, *rows, d))
+
+
+def inverse_by_congruence(Z: Matrix, d, W: Matrix) -> Matrix | None:
+    """(Z^T diag(d) Z)^-1 = W diag(d) W^T, for d of +-1 and W verified to be Z^-1.
+
+    Returns None unless Z W = I and W Z = I hold exactly and every d is +-1 (so that
+    diag(d)^2 = I); then (Z^T D Z)(W D W^T) = Z^T D (Z W) D W^T = Z^T W^T = (W Z)^T = I,
+    every step an identity that was checked.  Used with a verified
+    :func:`congruence_holds` (or :func:`gram_support_congruence_holds`), this proves
+    M G = I without forming M G, whose cost can be far above that of the factors.
+
+    >>> Z = Matrix.from_rows([[1, 1], [0, 1]])
+    >>> inverse_by_congruence(Z, [1, -1], Matrix.from_rows([[1, -1], [0, 1]])).rows()
+    [[0, 1], [1, -1]]
+    """
+    d = np.asarray(d, dtype=np.int64)
+    n = Z.shape[0]
+    if W.shape != Z.shape or len(d) != n or not np.all(np.abs(d) == 1):
+        return None
+    identity = Matrix.identity(n)
+    if not ((Z @ W) == identity and (W @ Z) == identity):
+        return None
+    D = Matrix.from_entries((n, n), np.arange(n), np.arange(n), d)
+    return W @ D @ W.T

@@ -65,15 +65,22 @@ class Matrix:
     -2
     """
 
-    __slots__ = ("shape", "_int", "_dense", "provenance")
+    __slots__ = ("shape", "_int", "_dense", "provenance", "congruence")
 
-    def __init__(self, shape, int64=None, dense=None, provenance: str = ""):
+    def __init__(self, shape, int64=None, dense=None, provenance: str = "", congruence=None):
         """Low-level constructor: ``int64`` a numpy/scipy int64 array (see module
-        docstring), or ``dense`` an ``fmpq_mat``.  Use the ``from_*`` builders."""
+        docstring), or ``dense`` an ``fmpq_mat``.  Use the ``from_*`` builders.
+
+        ``congruence`` is an optional *proposed* factorisation ``(Z, d)``, Z a Matrix
+        and d a sequence of integers, claiming M = Z^T diag(d) Z, or a function without
+        arguments that builds that pair when it is needed; nothing trusts it
+        before :func:`verifier.exact.linalg.congruence_holds` has checked it exactly.
+        """
         object.__setattr__(self, "shape", (int(shape[0]), int(shape[1])))
         object.__setattr__(self, "_int", None if int64 is None else _int64_form(int64))
         object.__setattr__(self, "_dense", dense)
         object.__setattr__(self, "provenance", provenance)
+        object.__setattr__(self, "congruence", congruence)
 
     def __setattr__(self, name, value):
         raise AttributeError("Matrix is immutable")
@@ -83,7 +90,13 @@ class Matrix:
 
     def with_provenance(self, text: str) -> "Matrix":
         """The same matrix, recording how it was obtained."""
-        return Matrix(self.shape, self._int, self._dense, text)
+        return Matrix(self.shape, self._int, self._dense, text, self.congruence)
+
+    def with_congruence(self, factor) -> "Matrix":
+        """The same matrix carrying a proposed factorisation M = Z^T diag(d) Z, given as
+        the pair (Z, d) or as a function returning it (checked exactly by whoever uses
+        it, never assumed)."""
+        return Matrix(self.shape, self._int, self._dense, self.provenance, factor)
 
     # ------------------------------------------------------------ constructors
     @classmethod
@@ -408,9 +421,10 @@ class Matrix:
 
 def _max_abs(array) -> int:
     """Largest absolute entry of a numpy or scipy int64 array, as a Python int."""
-    if sp.issparse(array):
-        return int(abs(array).max()) if array.nnz else 0
-    return int(np.abs(array).max()) if array.size else 0
+    values = array.data if sp.issparse(array) else array
+    if values.size == 0:
+        return 0
+    return max(abs(int(values.max())), abs(int(values.min())))   # no copy of the array
 
 
 FLOAT_EXACT = 1 << 53  # integers below this are exact in IEEE double, and so are their sums

@@ -103,14 +103,15 @@ def euler(K: Complex | Iterable) -> int:
 
 def _omega_vector(K: Complex) -> np.ndarray:
     """omega(x) for every simplex, in simplex order."""
-    return 1 - 2 * (np.asarray(K.dims, dtype=np.int64) % 2)
+    f = K.f_vector
+    return np.repeat(np.array([(-1) ** k for k in range(len(f))], dtype=np.int64), f)
 
 
-def _star_euler(K: Complex) -> list[int]:
+def _star_euler(K: Complex) -> np.ndarray:
     """chi(St(z)) = sum over simplices containing z of omega, for every simplex z."""
     faces, cofaces = K.containments()
     chi = np.bincount(faces, weights=_omega_vector(K)[cofaces], minlength=len(K.simplices))
-    return [int(round(c)) for c in chi]   # integer sums of +-1 below 2^53: exact
+    return np.rint(chi).astype(np.int64)   # integer sums of +-1 below 2^53: exact
 
 
 def wu(K: Complex) -> int:
@@ -127,4 +128,7 @@ def wu(K: Complex) -> int:
 
     References: [Wu], [GB].
     """
-    return sum(omega(z) * c * c for z, c in zip(K.simplices, _star_euler(K)))
+    chi = _star_euler(K)
+    if len(chi) and len(chi) * int(np.abs(chi).max()) ** 2 >= 2 ** 62:
+        return sum(int(w) * int(c) ** 2 for w, c in zip(_omega_vector(K), chi))
+    return int(np.dot(_omega_vector(K), chi * chi))   # bounded above: exact in int64
