@@ -18,6 +18,14 @@ case (or a seeded sample of ``sample`` cases).  Certified values (evidence ``cer
 SPEC §6) are recorded with their enclosures and precision under ``"certified"``; the
 independent backend recomputes them with another method at another precision, and each
 recorded enclosure must intersect its recomputation.
+
+Homology at scale: when a statement calls ``homology``, ``torsion`` or ``betti``, the
+checking process computes, with the main backend, a discrete-Morse witness
+(``verifier.invariants.homology_witness``) for every bound complex of a case with
+:data:`~verifier.independent.homology.WITNESS_THRESHOLD` simplices or more, and sends it
+with the case, keyed by :func:`~verifier.independent.homology.complex_key`.  The re-check
+process verifies each witness before answering from it (matching, acyclicity, Morse
+boundary, homology) and computes a Morse complex of its own for complexes without one.
 """
 
 from __future__ import annotations
@@ -216,6 +224,35 @@ def _variables(claim: dict) -> list[str]:
     return list(dict.fromkeys(entry.get("bind", "K") for entry in claim["over"]))
 
 
+def _tuple_labels(value):
+    """A label read from JSON as the re-check process reads it (lists become tuples)."""
+    return tuple(_tuple_labels(v) for v in value) if isinstance(value, list) else value
+
+
+def _witnesses(claim: dict, complexes) -> dict:
+    """Homology witnesses for the large complexes of one case (complex key -> witness),
+    computed by the main backend; empty unless the claim calls a homology function."""
+    import re
+    text = f"{claim.get('statement') or ''} {claim.get('where') or ''}"
+    if not re.search(r"\b(homology|torsion|betti)\s*\(", text):
+        return {}
+    from .complex import Complex
+    from .independent.homology import WITNESS_THRESHOLD, complex_key
+    from .invariants import homology_witness
+    found = {}
+    for K in complexes:
+        if not isinstance(K, Complex):
+            K = Complex.from_facets([[_tuple_labels(v) for v in f] for f in K])
+        if len(K.simplices) >= WITNESS_THRESHOLD:
+            found[complex_key(K.labels, K.facets)] = homology_witness(K)
+    return found
+
+
+def _with_witnesses(task: dict, claim: dict, complexes) -> dict:
+    witnesses = _witnesses(claim, complexes)
+    return dict(task, witnesses=witnesses) if witnesses else task
+
+
 def _check_counterexample(data: dict, result: CheckResult, timeout) -> CheckResult:
     from .independent.claims import recheck
     claim = data["claim"]
@@ -226,6 +263,7 @@ def _check_counterexample(data: dict, result: CheckResult, timeout) -> CheckResu
     tasks = [task]
     if original:
         tasks.append(dict(task, variables={v: c["facets"] for v, c in original.items()}))
+    tasks = [_with_witnesses(t, claim, list(t["variables"].values())) for t in tasks]
     answers = recheck(tasks, timeout=timeout)
     answer = answers[0]
     result.cases_checked = len(tasks)
@@ -297,8 +335,10 @@ def _check_pass(data: dict, result: CheckResult, sample, seed, timeout) -> Check
         return result
     chosen = ids if not sample or sample >= len(ids) else sorted(
         random.Random(seed).sample(ids, sample))
-    tasks = [{"statement": claim["statement"], "where": claim.get("where"),
-              "variables": {v: envs[cid][v].facet_labels() for v in planned.variables}}
+    tasks = [_with_witnesses({"statement": claim["statement"], "where": claim.get("where"),
+                              "variables": {v: envs[cid][v].facet_labels()
+                                            for v in planned.variables}},
+                             claim, [envs[cid][v] for v in planned.variables])
              for cid in chosen]
     answers = recheck(tasks, timeout=timeout) if tasks else []
     result.cases_checked = len(tasks)
