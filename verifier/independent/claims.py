@@ -886,8 +886,15 @@ def _degrees(K: Complex) -> list[int]:
 
 
 def _vertex_links(K: Complex):
+    """The link of every vertex, in vertex order; the stars are gathered in one pass over
+    the simplices (linear in the size of K, not quadratic)."""
+    stars: list[list[tuple[int, ...]]] = [[] for _ in range(K.n_vertices)]
+    for z in K.simplices:
+        if len(z) > 1:
+            for v in z:
+                stars[v].append(z)
     for v in range(K.n_vertices):
-        yield _link_of(K, (v,))
+        yield _generated(K, (tuple(w for w in z if w != v) for z in stars[v]))
 
 
 def _sphere(K: Complex, d: int) -> bool:
