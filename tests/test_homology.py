@@ -401,3 +401,14 @@ def test_predicted_sizes_are_the_sizes_of_the_constructions():
             assert sizes.product_size(K.f_vector, H.f_vector) == len(product(K, H).simplices)
             assert sizes.join_size(len(K.simplices), len(H.simplices)) == \
                 len(join(K, H).simplices)
+
+
+def test_show_prints_integer_homology_as_mathematicians_write_it(capsys):
+    # Klein bottle: H_1 = Z + Z/2 (Hatcher 2002, Example 2.37); RP^3: H_1 = Z/2, H_3 = Z
+    # (Example 2.42)
+    from verifier.cli import main
+
+    assert main(["show", "klein-bottle-8", "projective-space-3-11"]) == 0
+    out = capsys.readouterr().out
+    assert "H_0 = Z,  H_1 = Z + Z/2,  H_2 = 0" in out
+    assert "H_0 = Z,  H_1 = Z/2,  H_2 = 0,  H_3 = Z" in out
