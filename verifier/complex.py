@@ -350,7 +350,7 @@ class Complex:
         """
         def compute():
             offsets = self.dimension_offsets()
-            keys = [_row_keys(self.simplex_array(j), self.n_vertices) for j in range(self.dim + 1)]
+            keys = [self.simplex_keys(j) for j in range(self.dim + 1)]
             faces, cofaces = [], []
             for k in range(self.dim + 1):
                 S = self.simplex_array(k)
@@ -386,6 +386,12 @@ class Complex:
             return array
         return self._cached(("simplex_array", k), compute)
 
+    def simplex_keys(self, k: int) -> np.ndarray:
+        """Sort keys of the k-simplices (:func:`_row_keys` of :meth:`simplex_array`),
+        increasing in simplex order, for binary searches; cached."""
+        return self._cached(("simplex_keys", k),
+                            lambda: _row_keys(self.simplex_array(k), self.n_vertices))
+
     def face_positions(self, k: int) -> np.ndarray:
         """The codimension-one faces of the k-simplices (k >= 1), as positions in
         ``simplices``: an int64 array of shape (f_k, k + 1) whose column i holds the face
@@ -397,7 +403,7 @@ class Complex:
             S = self.simplex_array(k)
             if k < 1 or len(S) == 0:
                 return np.zeros((len(S), k + 1), dtype=np.int64)
-            keys = _row_keys(self.simplex_array(k - 1), self.n_vertices)
+            keys = self.simplex_keys(k - 1)
             result = np.empty(S.shape, dtype=np.int64)
             for i in range(k + 1):
                 face = np.delete(S, i, axis=1)

@@ -23,7 +23,7 @@ from __future__ import annotations
 from collections.abc import Hashable, Iterable
 from itertools import combinations
 
-from .complex import Complex, _sort_labels
+from .complex import SMALL_INPUT, Complex, _row_keys, _sort_labels
 
 __all__ = [
     "OperationError", "star", "closed_star", "link", "skeleton", "induced", "relabel",
@@ -44,11 +44,28 @@ def _simplex(K: Complex, x) -> tuple[int, ...]:
     except TypeError:
         raise OperationError(
             f"expected a simplex as a tuple of vertex indices, got {x!r}") from None
-    if simplex not in K.index:
+    if not _is_simplex(K, simplex):
         raise OperationError(
             f"{x!r} is not a simplex of the complex; give a tuple of vertex indices "
             f"(K.simplex_of(labels) converts labels)")
     return simplex
+
+
+def _is_simplex(K: Complex, simplex: tuple) -> bool:
+    """Membership of a sorted tuple, by the index dict for small complexes and by a
+    binary search over the lexicographic row keys of its dimension for large ones
+    (which spares building a dict of every simplex to ask about one)."""
+    if len(K.simplices) <= SMALL_INPUT:
+        return simplex in K.index
+    k = len(simplex) - 1
+    if not (0 <= k <= K.dim and all(isinstance(v, int) and 0 <= v < K.n_vertices
+                                    for v in simplex)):
+        return False
+    import numpy as np
+    keys = K.simplex_keys(k)
+    key = _row_keys(np.array([simplex], dtype=np.int64), K.n_vertices)
+    at = int(np.searchsorted(keys, key)[0])
+    return at < len(keys) and keys[at] == key[0]
 
 
 def _generated(K: Complex, sets: Iterable[tuple[int, ...]]) -> Complex:
@@ -118,7 +135,9 @@ def star(K: Complex, x) -> frozenset[int]:
     x = _simplex(K, x)
     members = set(x)
     simplices = K.simplices
-    return frozenset(j for j in K.vertex_stars()[x[0]] if members.issubset(simplices[j]))
+    start, around = K.vertex_star_arrays()
+    return frozenset(j for j in around[start[x[0]]:start[x[0] + 1]].tolist()
+                     if members.issubset(simplices[j]))
 
 
 def closed_star(K: Complex, x) -> Complex:

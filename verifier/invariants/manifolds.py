@@ -11,8 +11,12 @@ from __future__ import annotations
 
 from itertools import combinations
 
+import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.csgraph import connected_components
+
 from .. import operations
-from ..complex import Complex
+from ..complex import Complex, _row_keys
 from .counting import euler
 from .homology import betti
 
@@ -25,8 +29,123 @@ class NotDecided(ValueError):
 
 
 def _components(K: Complex) -> int:
-    import networkx as nx
-    return nx.number_connected_components(K.graph()) if K.n_vertices else 0
+    """The number of connected components (of the 1-skeleton)."""
+    if not K.n_vertices:
+        return 0
+    edges = K.simplex_array(1)
+    graph = sp.coo_array((np.ones(len(edges)), (edges[:, 0], edges[:, 1])),
+                         shape=(K.n_vertices, K.n_vertices))
+    return int(connected_components(graph, directed=False)[0])
+
+
+def _degrees(K: Complex) -> np.ndarray:
+    """The number of edges at each vertex."""
+    return np.bincount(K.simplex_array(1).ravel(), minlength=K.n_vertices)
+
+
+# ----------------------------------------------------------------------------------
+# Link tests for all simplices of one dimension at once (used for dimensions 1 to 3).
+
+def _coface_counts(K: Complex, k: int) -> np.ndarray:
+    """For every k-simplex, the number of (k+1)-simplices containing it."""
+    offsets = K.dimension_offsets()
+    if k + 1 > K.dim:
+        return np.zeros(K.f_vector[k], dtype=np.int64)
+    return np.bincount(K.face_positions(k + 1).ravel() - offsets[k], minlength=K.f_vector[k])
+
+
+def _boundary_count(K: Complex, k: int) -> np.ndarray:
+    """For every k-simplex, the number of free (d-1)-faces of the pure d-complex K
+    (those in exactly one facet) that contain it; k <= d - 1."""
+    d = K.dim
+    free = np.flatnonzero(_coface_counts(K, d - 1) == 1)
+    if k == d - 1:
+        counts = np.zeros(K.f_vector[k], dtype=np.int64)
+        counts[free] = 1
+        return counts
+    offsets = K.dimension_offsets()
+    faces = _faces_of_dimension(K, d - 1, k)[free]
+    return np.bincount(faces.ravel() - offsets[k], minlength=K.f_vector[k])
+
+
+def _faces_of_dimension(K: Complex, j: int, k: int) -> np.ndarray:
+    """For every j-simplex, the positions of its k-faces (one column per k-face)."""
+    S = K.simplex_array(j)
+    keys = K.simplex_keys(k)
+    columns = [np.searchsorted(keys, _keys(K, S[:, list(c)]))
+               for c in combinations(range(j + 1), k + 1)]
+    return np.stack(columns, axis=1) + K.dimension_offsets()[k]
+
+
+def _keys(K: Complex, rows: np.ndarray) -> np.ndarray:
+    return _row_keys(rows, K.n_vertices)
+
+
+def _links_connected(K: Complex, k: int) -> bool:
+    """Is the link of every k-simplex connected (k <= dim - 2, K pure)?
+
+    The 1-skeleton of Lk(s) has a vertex for each (k+1)-simplex t containing s and an
+    edge for each (k+2)-simplex r containing s, joining the two faces r - {a} and
+    r - {b} with r - {a, b} = s.  All these graphs are built at once, as one graph whose
+    nodes are the pairs (t, i) (s = t minus its i-th vertex); its components never mix
+    two simplices s, so every link is connected exactly when there are f_k components.
+    """
+    offsets = K.dimension_offsets()
+    width = k + 2                                   # vertices of a (k+1)-simplex
+    R = K.face_positions(k + 2) - offsets[k + 1]    # the (k+1)-faces of each r, by omitted vertex
+    first, second = [], []
+    for a, b in combinations(range(k + 3), 2):
+        # s = r - {r_a, r_b}; in t1 = r - {r_a} the vertex r_b is at b - 1 (b > a);
+        # in t2 = r - {r_b} the vertex r_a is at a
+        first.append(R[:, a] * width + (b - 1))
+        second.append(R[:, b] * width + a)
+    nodes = K.f_vector[k + 1] * width
+    graph = sp.coo_array((np.ones(sum(map(len, first))), (np.concatenate(first),
+                                                            np.concatenate(second))),
+                         shape=(nodes, nodes))
+    return int(connected_components(graph, directed=False)[0]) == K.f_vector[k]
+
+
+def _vertex_link_euler(K: Complex) -> np.ndarray:
+    """chi(Lk v) for every vertex v: sum over simplices t containing v, t != v, of
+    (-1)^(dim t - 1)."""
+    chi = np.zeros(K.n_vertices, dtype=np.int64)
+    for k in range(1, K.dim + 1):
+        chi += (-1) ** (k - 1) * np.bincount(K.simplex_array(k).ravel(), minlength=K.n_vertices)
+    return chi
+
+
+def _low_dimensional_manifold(K: Complex, boundary: bool) -> bool:
+    """The vertex-link test of :func:`is_closed_manifold` (``boundary=False``) or
+    :func:`is_manifold` (``boundary=True``) for a pure K of dimension 1, 2 or 3, decided
+    for all vertices at once.
+
+    The links of a combinatorial manifold of dimension <= 3 are recognised by counting
+    and connectivity (classification of curves and surfaces):
+    d = 1: every vertex lies on two edges (one or two with boundary);
+    d = 2: every edge lies in two triangles (one or two), every vertex link is connected,
+    and (with boundary) a vertex lies on 0 or 2 boundary edges -- a circle or a path;
+    d = 3: every triangle lies in two tetrahedra (one or two), every edge link is
+    connected with 0 or 2 boundary triangles at the edge (a circle or a path), so that
+    every vertex link is a surface; it must be connected with chi = 2 (a sphere) or,
+    if the vertex lies on a boundary triangle, chi = 1 (a disc).
+    """
+    d = K.dim
+    counts = _coface_counts(K, d - 1)
+    if np.any(counts > 2) or (not boundary and np.any(counts < 2)):
+        return False
+    if d == 1:
+        return True
+    if boundary and not np.all(np.isin(_boundary_count(K, d - 2), (0, 2))):
+        return False
+    if not _links_connected(K, d - 2):
+        return False
+    if d == 2:
+        return True
+    if not _links_connected(K, 0):
+        return False
+    on_boundary = _boundary_count(K, 0) > 0 if boundary else np.zeros(K.n_vertices, bool)
+    return bool(np.all(_vertex_link_euler(K) == np.where(on_boundary, 1, 2)))
 
 
 def _collapses_to_point(simplices: set[tuple[int, ...]], attempts: int = 8) -> bool:
@@ -90,11 +209,7 @@ def is_sphere(K: Complex, d: int | None = None) -> bool:
     if d == 0:
         return K.n_vertices == 2
     if d == 1:
-        degrees = [0] * K.n_vertices
-        for s in K.facets:
-            for v in s:
-                degrees[v] += 1
-        return all(x == 2 for x in degrees) and _components(K) == 1
+        return bool(np.all(_degrees(K) == 2)) and _components(K) == 1
     if not is_closed_manifold(K) or _components(K) != 1:
         return False
     if d == 2:
@@ -126,11 +241,8 @@ def is_ball(K: Complex, d: int | None = None) -> bool:
     if _components(K) != 1:
         return False
     if d == 1:
-        degrees = [0] * K.n_vertices
-        for s in K.facets:
-            for v in s:
-                degrees[v] += 1
-        return max(degrees) <= 2 and degrees.count(1) == 2
+        degrees = _degrees(K)
+        return int(degrees.max()) <= 2 and int(np.count_nonzero(degrees == 1)) == 2
     if not is_manifold_with_boundary(K):
         return False
     if d == 2:
@@ -152,8 +264,9 @@ def is_closed_manifold(K: Complex) -> bool:
     (d-1)-sphere?
 
     Decided exactly for d <= 3 (links of dimension <= 2 are recognised by the
-    classification of surfaces); for d >= 4 the link test uses :func:`is_sphere`'s
-    collapse witness and may raise NotDecided.
+    classification of surfaces), for all vertices at once by counting cofaces and
+    connected components of links (:func:`_low_dimensional_manifold`); for d >= 4 the
+    link test uses :func:`is_sphere`'s collapse witness and may raise NotDecided.
 
     >>> is_closed_manifold(Complex.from_facets([[1, 2], [2, 3], [1, 3]]))
     True
@@ -165,6 +278,8 @@ def is_closed_manifold(K: Complex) -> bool:
     d = K.dim
     if d < 0 or not K.is_pure():
         return False
+    if 1 <= d <= 3:
+        return _low_dimensional_manifold(K, boundary=False)
     return _links_all(K, lambda S: is_sphere(S, d - 1))
 
 
@@ -182,6 +297,8 @@ def is_manifold(K: Complex) -> bool:
         return False
     if d == 0:
         return True
+    if d <= 3:
+        return _low_dimensional_manifold(K, boundary=True)
     return _links_all(K, lambda S: is_sphere(S, d - 1) or is_ball(S, d - 1))
 
 
