@@ -18,6 +18,7 @@
 
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 import random
@@ -394,8 +395,12 @@ def test_file_family_reads_facets_and_graphs(tmp_path):
     assert cases["file/square.edgelist"].f_vector == (4, 5, 2)      # two triangles
     assert cases["file/pentagon.graphml"].f_vector == (5, 5)
     assert cases["file/square.edgelist"].labels == (1, 2, 3, 4)
-    assert family.spec() == {"family": "file", "path": "data", "as": "flag",
-                             "_base": str(tmp_path)}
+    spec = family.spec()
+    hashes = spec.pop("_sha256")                # each file's SHA-256, bound into the spec
+    assert spec == {"family": "file", "path": "data", "as": "flag", "_base": str(tmp_path)}
+    assert hashes["triangle.txt"] == hashlib.sha256(b"# a filled triangle\n1 2 3\n").hexdigest()
+    assert sorted(hashes) == ["path.json", "pentagon.graphml", "square.edgelist",
+                              "triangle.txt"]
     assert dict(make_family(family.spec())) == cases
     single = make_family({"family": "refine", "_base": str(folder),
                           "of": {"family": "file", "path": "triangle.txt"}})
@@ -410,11 +415,11 @@ def test_file_family_errors(tmp_path):
         f"family 'file', parameter 'path': folder {str(tmp_path / '.')!r} has no file "
         "ending in .txt, .json, .graphml, .edgelist")
     (tmp_path / "loop.edgelist").write_text("1 1\n")
-    family = make_family({"family": "file", "path": "loop.edgelist", "_base": str(tmp_path)})
-    with pytest.raises(FamilyError) as caught:
-        family.get("file/loop.edgelist")
-    assert str(caught.value) == ("case 'file/loop.edgelist': graph has a self-loop; "
-                                 "simplicial complexes have none")
+    # a bad data file is refused when the family is built (when claims load), not per case
+    loop = str(tmp_path / "loop.edgelist")
+    assert str(error_of({"family": "file", "path": "loop.edgelist", "_base": str(tmp_path)})) \
+        == (f"family 'file', parameter 'path': {loop}: the graph has a self-loop; "
+            "simplicial complexes have none")
 
 
 # ------------------------------------------------------------ validation messages

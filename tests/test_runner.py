@@ -264,8 +264,8 @@ def test_check_command_exit_codes(certified, tmp_path):
     assert bad.returncode == 1 and "NOT verified" in bad.stdout
     junk = tmp_path / "junk.json"
     junk.write_text("{not json")
-    result = cli("check", str(junk))
-    assert result.returncode == 1 and "invalid JSON" in result.stdout
+    result = cli("check", str(junk))          # not a certificate at all: bad input, exit 2
+    assert result.returncode == 2 and "invalid JSON" in result.stderr and result.stdout == ""
 
 
 # ------------------------------------------------------------------- time limits

@@ -171,21 +171,54 @@ class CheckResult:
     cases_checked: int = 0
 
 
+MAX_CERTIFICATE_BYTES = 32 * 1024 * 1024
+
+
 def _load(path: Path) -> dict:
+    """A certificate file's data: a regular file of at most MAX_CERTIFICATE_BYTES holding a
+    JSON object (hostile JSON -- deep nesting, huge numbers, lone surrogates -- refused
+    by :func:`verifier.userfiles.parse_json`)."""
+    from .userfiles import UnreadableFile, parse_json, read_text
     try:
-        data = json.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise CertificateError(f"{path}: no such file") from None
-    except (UnicodeDecodeError, json.JSONDecodeError) as error:
-        raise CertificateError(f"{path}: not a certificate (invalid JSON: {error})") from None
+        data = parse_json(read_text(path, "certificate", MAX_CERTIFICATE_BYTES), path,
+                          "certificate")
+    except UnreadableFile as error:
+        raise CertificateError(str(error)) from None
     if not isinstance(data, dict):
-        raise CertificateError(f"{path}: not a certificate (expected a JSON object)")
+        raise CertificateError(f"not a certificate: {path}: expected a JSON object")
     return data
 
 
+def data_files(data: dict) -> list[str]:
+    """The paths of data files a certificate's families name (``file`` families, at any
+    depth): re-checking them needs the data folder from the user."""
+    found = []
+
+    def walk(value, depth=0):
+        if depth > 64:
+            return
+        if isinstance(value, dict):
+            if value.get("family") == "file":
+                found.append(str(value.get("path")))
+            for inner in value.values():
+                walk(inner, depth + 1)
+        elif isinstance(value, list):
+            for inner in value:
+                walk(inner, depth + 1)
+    claim = data.get("claim")
+    if isinstance(claim, dict):
+        walk(claim.get("over"))
+    return found
+
+
 def check(path: str | Path, sample: int | None = None, seed: int = 0,
-          timeout: float | None = None) -> CheckResult:
-    """Re-verify one certificate; never raises for a bad certificate, says why instead."""
+          timeout: float | None = None, data_folder: str | Path | None = None) -> CheckResult:
+    """Re-verify one certificate; never raises for a bad certificate, says why instead.
+
+    ``data_folder`` is where the data files of ``file`` families are looked up (by name;
+    each must have the SHA-256 the certificate records).  Without it, a certificate
+    whose families read files is not re-checked: no path a certificate names is opened.
+    """
     path = Path(path)
     try:
         data = _load(path)
@@ -212,7 +245,12 @@ def check(path: str | Path, sample: int | None = None, seed: int = 0,
         if data.get("kind") == "counterexample":
             return _check_counterexample(data, result, timeout)
         if data.get("kind") == "pass":
-            return _check_pass(data, result, sample, seed, timeout)
+            if data_files(data) and data_folder is None:
+                result.reason = ("not re-checked: its families read data files ("
+                                 + ", ".join(data_files(data)[:3]) + "); name the folder "
+                                 "that holds them with --data-folder")
+                return result
+            return _check_pass(data, result, sample, seed, timeout, data_folder)
     except Exception as error:  # noqa: BLE001 - reported as the reason, never a traceback
         result.reason = f"could not re-check: {type(error).__name__}: {error}"
         return result
@@ -306,25 +344,73 @@ def _certified_mismatch(recorded, answer: dict) -> str | None:
 class _Plan:
     """Just enough of a claim to re-plan its cases from a certificate."""
 
-    def __init__(self, claim: dict):
+    def __init__(self, claim: dict, data_folder=None):
         from .claims.loader import FamilyRef
         from .families import make_family
         self.name = claim.get("name", "?")
         self.max_cases = claim.get("max_cases")
         self.over = []
         for entry in claim["over"]:
-            spec = {k: v for k, v in entry.items() if k != "bind"}
+            spec = _with_data_folder({k: v for k, v in entry.items() if k != "bind"},
+                                     data_folder)
             self.over.append(FamilyRef(spec, entry.get("bind", "K"), None, make_family(spec)))
         self.variables = list(dict.fromkeys(ref.bind for ref in self.over))
 
 
-def _check_pass(data: dict, result: CheckResult, sample, seed, timeout) -> CheckResult:
+def _with_data_folder(spec, folder):
+    """A family spec whose ``file`` families read their recorded files from ``folder``."""
+    if isinstance(spec, list):
+        return [_with_data_folder(v, folder) for v in spec]
+    if not isinstance(spec, dict):
+        return spec
+    spec = {k: _with_data_folder(v, folder) for k, v in spec.items()}
+    if spec.get("family") == "file":
+        if folder is None:
+            raise CertificateError("its families read data files; name the folder that "
+                                   "holds them with --data-folder")
+        spec.update(path=".", _base=os.path.realpath(str(folder)))
+    return spec
+
+
+def _planned_size(planned) -> int | None:
+    """How many cases the families of a certificate announce, without enumerating them
+    (None when a family cannot tell)."""
+    sizes = {}
+    for ref in planned.over:
+        size = ref.family.size()
+        if size is None:
+            return None
+        sizes[ref.bind] = sizes.get(ref.bind, 0) + size
+    total = 1
+    for size in sizes.values():
+        total *= size
+    return min(total, planned.max_cases) if isinstance(planned.max_cases, int) else total
+
+
+def _check_pass(data: dict, result: CheckResult, sample, seed, timeout,
+                data_folder=None) -> CheckResult:
+    import itertools
+
     from .independent.claims import recheck
     from .run.cases import complexes_of, plan
     from .run.runner import digest_of
+    from .families.named import DataChanged
     claim = data["claim"]
-    planned = _Plan(claim)
-    ids = list(plan(planned, None))
+    try:
+        planned = _Plan(claim, data_folder)
+    except DataChanged as error:
+        result.reason = f"mismatch: {error}"
+        return result
+    announced = data.get("cases")
+    if not isinstance(announced, int) or isinstance(announced, bool) or announced < 0:
+        result.reason = f"malformed: 'cases' must be a whole number, got {announced!r}"
+        return result
+    expected = _planned_size(planned)
+    if expected is not None and expected != announced:
+        result.reason = (f"mismatch: the certificate's families plan {expected:,} cases, "
+                         f"it says {announced:,} (nothing was evaluated)")
+        return result
+    ids = list(itertools.islice(plan(planned, None), announced + 1))
     envs = {cid: complexes_of(planned, cid) for cid in ids}
     rows = [(cid, ",".join(envs[cid][v].content_hash for v in planned.variables)) for cid in ids]
     if len(ids) != data.get("cases"):

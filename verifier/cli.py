@@ -18,6 +18,9 @@ from __future__ import annotations
 
 import argparse
 import json
+import math
+import os
+import re
 import sys
 import time
 from fractions import Fraction
@@ -29,7 +32,7 @@ from rich.markup import escape
 from rich.table import Table
 
 from . import __version__
-from .complex import Complex, ComplexError
+from .complex import Complex
 from .run.store import UNSETTLED
 
 __all__ = ["main", "load_complex", "UserError"]
@@ -39,18 +42,32 @@ class UserError(Exception):
     """A mistake in what the user asked for; printed as one line, exit code 2."""
 
 
-def load_complex(spec: str) -> tuple[str, Complex]:
-    """A complex from a catalog name or a facet file, with a display name."""
-    from .families import catalog
+def load_complex(spec: str, max_simplices: int | None = None) -> tuple[str, Complex]:
+    """A complex from a catalog name or a data file, with a display name.
 
+    A file is read as the ``file`` family reads it (:mod:`verifier.families.datafiles`):
+    a regular file of bounded size, whose simplices are counted from its facets and
+    refused above ``max_simplices`` before the complex is built.
+    """
+    from .families import catalog
+    from .families.datafiles import MAX_DATA_BYTES, DataFileError, complex_from_bytes
+    from .families.family import MAX_SIMPLICES
+    from .userfiles import UnreadableFile, read_bytes
+
+    cap = max_simplices or MAX_SIMPLICES
     path = Path(spec)
-    if path.suffix or path.exists() or "/" in spec:
-        if not path.exists():
+    if path.suffix or os.path.lexists(path) or "/" in spec:
+        if not os.path.lexists(path):
             raise UserError(f"{spec}: no such file (and not a catalog name)")
         try:
-            return path.name, Complex.from_file(path)
-        except ComplexError as error:
+            return path.name, complex_from_bytes(read_bytes(path, "complex file",
+                                                            MAX_DATA_BYTES), spec, cap=cap)
+        except UnreadableFile as error:
             raise UserError(str(error)) from None
+        except DataFileError as error:
+            hint = (f" (--max-simplices raises the limit, up to {SHOW_SIMPLICES_CEILING:,})"
+                    if "simplices allowed" in str(error) or "more than" in str(error) else "")
+            raise UserError(f"{error}{hint}") from None
     try:
         return spec, catalog.complex(spec)
     except catalog.CatalogError as error:
@@ -125,7 +142,8 @@ def cmd_show(args, console: Console) -> int:
                         "or use --list")
     if args.png is not None:
         _check_picture_path(args.png, len(args.complexes))
-    loaded = [load_complex(spec) for spec in args.complexes]  # all inputs first
+    loaded = [load_complex(spec, args.max_simplices)
+              for spec in args.complexes]  # all inputs first
     if args.png is not None:
         _write_picture(loaded[0][1], args.png)
     for name, K in loaded:
@@ -208,19 +226,36 @@ def cmd_run(args, console: Console) -> int:
     from .claims.errors import ClaimError
     from .run.runner import RunOptions, run
 
+    from .families import FamilyError
+    from .run.runner import OptionError, check_options, check_output_folder
+    from .run.store import StoreError
+
     options = RunOptions(store=args.store, workers=args.workers, engine=args.engine,
                          scheduler=args.scheduler, case_memory=args.case_memory,
                          resume=args.resume, max_cases=args.max_cases,
-                         case_timeout=args.case_timeout)
+                         case_timeout=args.case_timeout,
+                         data_folders=tuple(args.data_folder or ()))
+    try:                           # every option and output path before any work
+        check_options(options)
+        check_output_folder(args.certificates, "--certificates")
+    except OptionError as error:
+        raise UserError(str(error)) from None
     bar = None if args.quiet else _Bar(console)
     try:
         result = run(args.paths, options, progress=bar)
-    except ClaimError as error:
+    except (ClaimError, OptionError) as error:
+        raise UserError(str(error)) from None
+    except (StoreError, FamilyError) as error:
         raise UserError(str(error)) from None
     finally:
         if bar is not None:
             bar.stop()
-    written = write_certificates(result, args.certificates)
+    try:
+        written = write_certificates(result, args.certificates)
+    except OSError as error:
+        raise UserError(f"--certificates {args.certificates}: cannot write a certificate "
+                        f"({error.strerror or error}); the run is in the store "
+                        f"{result.store}") from None
     table = Table(title=f"run {result.run_id} ({result.engine}, {result.workers} workers"
                         f"{', resumed' if result.resumed else ''})", title_justify="left",
                   box=box.SIMPLE_HEAD, padding=(0, 1))
@@ -260,12 +295,27 @@ def cmd_run(args, console: Console) -> int:
 def cmd_check(args, console: Console) -> int:
     from .certificates import check
 
+    from .certificates import CertificateError, _load, data_files
+
     paths = args.certificates
     if not paths:
         raise UserError("check: name at least one certificate file")
+    folder = args.data_folder
+    if folder is not None and not os.path.isdir(folder):
+        raise UserError(f"--data-folder {folder!r}: no such folder")
+    for path in paths:             # every file is readable before any is checked
+        try:
+            data = _load(Path(path))
+        except CertificateError as error:
+            raise UserError(str(error)) from None
+        named = data_files(data)
+        if named and folder is None and data.get("kind") == "pass":
+            raise UserError(f"{path}: its families read data files ({', '.join(named[:3])}); "
+                            "name the folder that holds them with --data-folder DIR (no path "
+                            "a certificate names is opened)")
     everything = True
     for path in paths:
-        outcome = check(path, sample=args.sample, seed=args.seed)
+        outcome = check(path, sample=args.sample, seed=args.seed, data_folder=folder)
         mark = "[green]verified[/green]" if outcome.verified else "[red]NOT verified[/red]"
         console.print(f"{mark}  {escape(str(path))}  {outcome.kind} {escape(outcome.claim)}: "
                       f"{escape(outcome.reason)}", highlight=False, soft_wrap=True)
@@ -387,8 +437,10 @@ def _temperatures(text: str) -> list[float]:
         a, b, n = float(a), float(b), int(n)
     except ValueError:
         raise UserError(f"--temperatures: expected A:B:N (e.g. 2:0.05:40), got {text!r}") from None
-    if not (a > 0 and b > 0 and n >= 2):
-        raise UserError(f"--temperatures: need A > 0, B > 0 and N >= 2, got {text!r}")
+    if not (math.isfinite(a) and math.isfinite(b) and a > 0 and b > 0
+            and 2 <= n <= MAX_TEMPERATURES):
+        raise UserError(f"--temperatures: need finite A > 0, B > 0 and 2 <= N <= "
+                        f"{MAX_TEMPERATURES}, got {text!r}")
     high, low = max(a, b), min(a, b)
     return [high + (low - high) * i / (n - 1) for i in range(n)]
 
@@ -465,8 +517,19 @@ def cmd_families(args, console: Console) -> int:
     return 0
 
 
+class _OptionMistake(Exception):
+    """A command line argparse cannot read (printed as one line, exit code 2)."""
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse, with its errors as one line instead of a usage block."""
+
+    def error(self, message):
+        raise _OptionMistake(f"{self.prog}: {message} (see {self.prog} --help)")
+
+
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog="verifier",
         description="Exact tests of identities about finite simplicial complexes.")
     parser.add_argument("--version", action="version", version=f"verifier {__version__}")
@@ -477,6 +540,9 @@ def build_parser() -> argparse.ArgumentParser:
     show.add_argument("--list", action="store_true", help="list the catalog names")
     show.add_argument("--png", metavar="FILE", default=None,
                       help="also draw the complex into FILE (.png or .svg)")
+    show.add_argument("--max-simplices", type=_count(1, SHOW_SIMPLICES_CEILING), default=None,
+                      metavar="N", help="refuse a file whose complex has more than N "
+                      "simplices (default 1,000,000; at most 10,000,000)")
     show.set_defaults(handler=cmd_show)
 
     run = commands.add_parser("run", help="test claims over their families")
@@ -484,8 +550,8 @@ def build_parser() -> argparse.ArgumentParser:
     run.add_argument("--store", default="reports/verifier.sqlite", help="SQLite store")
     run.add_argument("--certificates", default="reports/certificates",
                      help="folder for the certificates")
-    run.add_argument("--workers", type=_positive_int, default=None,
-                     help="worker processes (default: one per core)")
+    run.add_argument("--workers", type=_integer, default=None,
+                     help="worker processes (default: one per core; at most 4 per core)")
     run.add_argument("--engine", choices=["processes", "dask", "inline"], default="processes",
                      help="local worker processes (default), a Dask cluster, or in-process")
     run.add_argument("--scheduler", metavar="ADDRESS", default=None,
@@ -493,30 +559,39 @@ def build_parser() -> argparse.ArgumentParser:
                           "without it a local cluster is started")
     run.add_argument("--resume", action="store_true",
                      help="finish the interrupted run of the same claims in the store")
-    run.add_argument("--max-cases", type=_positive_int, default=None,
+    run.add_argument("--max-cases", type=_integer, default=None,
                      help="at most this many cases per claim")
-    run.add_argument("--case-timeout", type=float, default=60.0,
-                     help="seconds allowed for one case (default 60)")
-    run.add_argument("--case-memory", type=_positive_int, default=None, metavar="MB",
+    run.add_argument("--case-timeout", type=_real, default=60.0,
+                     help="seconds allowed for one case (default 60; 0 < seconds <= one week)")
+    run.add_argument("--data-folder", action="append", metavar="DIR", default=None,
+                     help="also let `file` families read data files inside DIR (by default "
+                          "only inside each claim file's folder); may be repeated")
+    run.add_argument("--case-memory", type=_integer, default=None, metavar="MB",
                      help="memory one case may use on a worker, in megabytes (default: no cap)")
     run.add_argument("--quiet", action="store_true", help="no progress bar")
     run.set_defaults(handler=cmd_run)
 
     check = commands.add_parser("check", help="re-verify certificates independently")
     check.add_argument("certificates", nargs="*", metavar="CERT")
-    check.add_argument("--sample", type=_positive_int, default=None,
+    check.add_argument("--sample", type=_count(1, 10**9), default=None,
                        help="re-evaluate a seeded sample of N cases of a pass certificate")
-    check.add_argument("--seed", type=int, default=0, help="seed of the sample")
+    check.add_argument("--seed", type=_seed, default=0, help="seed of the sample")
+    check.add_argument("--data-folder", metavar="DIR", default=None,
+                       help="the folder holding the data files of `file` families, looked "
+                            "up by name and checked against their recorded SHA-256")
     check.set_defaults(handler=cmd_check)
 
     hunt = commands.add_parser("search", help="hunt a counterexample with random generation")
     hunt.add_argument("paths", nargs="+", metavar="PATH_OR_NAME",
                       help="claim file(s), or the name of a claim in ./claims")
     hunt.add_argument("--claim", help="the claim's name when a file holds several")
-    hunt.add_argument("--seconds", type=float, default=60.0, help="time budget (default 60)")
-    hunt.add_argument("--seed", type=int, default=0, help="seed of the random generation")
-    hunt.add_argument("--max-vertices", type=_positive_int, default=8)
-    hunt.add_argument("--max-dim", type=int, default=3)
+    hunt.add_argument("--seconds", type=_seconds, default=60.0,
+                      help="time budget (default 60; 0 < seconds <= one week)")
+    hunt.add_argument("--seed", type=_seed, default=0, help="seed of the random generation")
+    hunt.add_argument("--max-vertices", type=_count(1, 30), default=8,
+                      help="vertices of a generated complex (1 to 30, default 8)")
+    hunt.add_argument("--max-dim", type=_count(0, 10), default=3,
+                      help="dimension of a generated complex (0 to 10, default 3)")
     hunt.add_argument("--certificates", default="reports/certificates",
                       help="folder for the counterexample certificate")
     hunt.set_defaults(handler=cmd_search)
@@ -544,7 +619,7 @@ def build_parser() -> argparse.ArgumentParser:
                          help="N temperatures from A down to B (default 2:0.05:40)")
     explore.add_argument("--out", default="reports", help="folder for the diagram and CSV")
     explore.add_argument("--format", choices=["png", "svg"], default="png")
-    explore.add_argument("--seed", type=int, default=0, help="seed of the random starts")
+    explore.add_argument("--seed", type=_seed, default=0, help="seed of the random starts")
     explore.set_defaults(handler=cmd_energy)
 
     functions = commands.add_parser("functions", help="list the claim language's functions")
@@ -554,19 +629,58 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-def _positive_int(text: str) -> int:
+SHOW_SIMPLICES_CEILING = 10_000_000     # the most --max-simplices may allow
+MAX_SEED = 2**63 - 1
+MAX_TEMPERATURES = 10_000
+
+
+def _integer(text: str) -> int:
+    """An integer as typed (ranges are checked where the option is used)."""
+    if not re.fullmatch(r"[+-]?[0-9]{1,30}", text.strip()):
+        raise argparse.ArgumentTypeError(f"expected an integer, got {text[:40]!r}")
+    return int(text)
+
+
+def _real(text: str) -> float:
+    """A number as typed, 'nan' and 'inf' included (ranges are checked where used)."""
     try:
-        value = int(text)
+        return float(text) if len(text) <= 40 else float("nan")
     except ValueError:
-        raise argparse.ArgumentTypeError(f"expected a positive integer, got {text!r}") from None
-    if value < 1:
-        raise argparse.ArgumentTypeError(f"expected a positive integer, got {value}")
+        raise argparse.ArgumentTypeError(f"expected a number, got {text[:40]!r}") from None
+
+
+def _count(low: int, high: int):
+    """An argparse type: an integer with low <= value <= high."""
+    def parse(text: str) -> int:
+        value = _integer(text)
+        if not low <= value <= high:
+            raise argparse.ArgumentTypeError(f"expected an integer from {low:,} to {high:,}, "
+                                             f"got {value}")
+        return value
+    return parse
+
+
+def _seed(text: str) -> int:
+    return _count(0, MAX_SEED)(text)
+
+
+def _seconds(text: str) -> float:
+    from .run.runner import MAX_CASE_SECONDS
+    value = _real(text)
+    if not (math.isfinite(value) and 0 < value <= MAX_CASE_SECONDS):
+        raise argparse.ArgumentTypeError(f"expected a number of seconds with 0 < seconds <= "
+                                         f"{MAX_CASE_SECONDS:.0f}, got {text[:40]!r}")
     return value
 
 
 def main(argv: list[str] | None = None) -> int:
     parser = build_parser()
-    args = parser.parse_args(argv)
+    try:
+        args = parser.parse_args(argv)
+    except _OptionMistake as error:
+        Console(stderr=True, emoji=False).print(f"[red]error:[/red] {escape(str(error))}",
+                                                highlight=False, soft_wrap=True)
+        return 2
     if not getattr(args, "handler", None):
         parser.print_help()
         return 2

@@ -16,6 +16,7 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from ..userfiles import UnreadableFile, read_text
 from .errors import ClaimError, ClaimFileError, ExpressionError, Place
 from .expression import Node, parse
 
@@ -25,7 +26,9 @@ CLAIM_KEYS = ("name", "title", "statement", "where", "expect", "evidence", "sour
               "max_cases", "notes")
 EVIDENCE_LEVELS = ("exact", "certified", "probabilistic", "float")
 NAME = re.compile(r"^[a-z0-9][a-z0-9-]*$")
+MAX_NAME_LENGTH = 80            # a claim's name also names its certificate file
 MAX_FILE_BYTES = 1_000_000
+MAX_TOML_NESTING = 40           # arrays and inline tables inside one another
 
 
 @dataclass
@@ -129,6 +132,25 @@ class _Positions:
         return self._lines[number - 1] if number - 1 < len(self._lines) else ""
 
 
+def _shown(value) -> str:
+    text = repr(value)
+    return text if len(text) <= 40 else text[:37] + "..."
+
+
+def _hidden_key(table, depth: int = 0) -> str | None:
+    """The first key starting with '_' in a family table or the tables nested in it."""
+    if depth > MAX_TOML_NESTING:
+        return None
+    for key, value in table.items():
+        if isinstance(key, str) and key.startswith("_"):
+            return key
+        values = value if isinstance(value, list) else [value]
+        for inner in values:
+            if isinstance(inner, dict) and (found := _hidden_key(inner, depth + 1)):
+                return found
+    return None
+
+
 def _closest(name: str, valid) -> str:
     close = difflib.get_close_matches(name, list(valid), n=1, cutoff=0.6)
     return f"; did you mean '{close[0]}'?" if close else ""
@@ -136,16 +158,58 @@ def _closest(name: str, valid) -> str:
 
 # ------------------------------------------------------------------ loading
 def _read(path: Path) -> str:
+    """A claim file's text: a regular file (never a FIFO, device or folder, which would
+    block or never end), UTF-8, at most MAX_FILE_BYTES."""
     try:
-        if path.stat().st_size > MAX_FILE_BYTES:
-            raise ClaimFileError(f"claim file larger than {MAX_FILE_BYTES} bytes", Place(str(path)))
-        return path.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise ClaimFileError("no such file", Place(str(path))) from None
-    except UnicodeDecodeError:
-        raise ClaimFileError("not a UTF-8 text file", Place(str(path))) from None
-    except OSError as error:
-        raise ClaimFileError(f"cannot read ({error.strerror})", Place(str(path))) from None
+        return read_text(path, "claim file", MAX_FILE_BYTES)
+    except UnreadableFile as error:
+        message = str(error)
+        prefix = f"{path}: "
+        raise ClaimFileError(message[len(prefix):] if message.startswith(prefix) else message,
+                             Place(str(path))) from None
+
+
+def _nesting(text: str, file: str) -> None:
+    """Refuse arrays and inline tables nested deeper than MAX_TOML_NESTING, at the place
+    where the limit is passed (the TOML reader would otherwise exhaust Python's stack)."""
+    depth, line, column, i, n = 0, 1, 0, 0, len(text)
+    while i < n:
+        c = text[i]
+        column += 1
+        if c == "\n":
+            line, column = line + 1, 0
+        elif c == "#":
+            end = text.find("\n", i)
+            i = n if end < 0 else end
+            continue
+        elif c in "\"'":
+            triple = text.startswith(c * 3, i)
+            quote = c * 3 if triple else c
+            j = i + len(quote)
+            while j < n:
+                if c == '"' and text[j] == "\\":
+                    j += 2
+                    continue
+                if text.startswith(quote, j) or (not triple and text[j] == "\n"):
+                    break
+                j += 1
+            j = min(n, j + len(quote))
+            skipped = text[i:j]
+            if "\n" in skipped:
+                line += skipped.count("\n")
+                column = len(skipped) - skipped.rfind("\n") - 1
+            else:
+                column += len(skipped) - 1
+            i = j
+            continue
+        elif c in "[{":
+            depth += 1
+            if depth > MAX_TOML_NESTING:
+                raise ClaimFileError(f"arrays or tables nested more than {MAX_TOML_NESTING} "
+                                     "deep", Place(file, line, column))
+        elif c in "]}":
+            depth = max(0, depth - 1)
+        i += 1
 
 
 def load_file(path: str | Path, make_family=None) -> list[Claim]:
@@ -163,8 +227,11 @@ def load_text(text: str, path: str | Path, make_family=None) -> list[Claim]:
     of relative paths in its families (workers of a cluster load claims this way)."""
     path = Path(path)
     file = str(path)
+    _nesting(text, file)
     try:
         data = tomllib.loads(text)
+    except RecursionError:
+        raise ClaimFileError("arrays or tables nested too deeply", Place(file)) from None
     except tomllib.TOMLDecodeError as error:
         message = str(error)
         found = re.search(r"\(at line (\d+), column (\d+)\)", message)
@@ -203,6 +270,10 @@ def _claim(i: int, table: dict, positions: _Positions, path: Path, make_family) 
             raise ClaimFileError(f"unknown key '{key}' in [[claim]]{_closest(key, CLAIM_KEYS)}",
                                  positions.place(i, "key:" + key))
     name = _text(table, "name", i, positions)
+    if len(name) > MAX_NAME_LENGTH:
+        raise ClaimFileError(f"claim name '{name[:20]}...' has {len(name)} characters; at most "
+                             f"{MAX_NAME_LENGTH} are allowed (it also names the certificate "
+                             "file)", positions.place(i, "name"))
     if not NAME.match(name):
         raise ClaimFileError(f"claim name '{name}' must use only a-z, 0-9 and '-'",
                              positions.place(i, "name"))
@@ -227,8 +298,15 @@ def _claim(i: int, table: dict, positions: _Positions, path: Path, make_family) 
     refs = []
     for j, entry in enumerate(over):
         place = positions.place(i, over=j)
+        if place.line is None:                 # written inline: over = [ ... ]
+            place = positions.place(i, "over")
         if not isinstance(entry, dict):
-            raise ClaimFileError("each 'over' entry must be a table", place)
+            raise ClaimFileError("each 'over' entry must be a table such as "
+                                 f"{{ family = \"catalog\" }}, got {_shown(entry)}", place)
+        hidden = _hidden_key(entry)
+        if hidden:
+            raise ClaimFileError(f"unknown key '{hidden}' in 'over' entry (keys starting with "
+                                 "'_' are reserved for the tool)", place)
         bind = entry.get("bind", "K")
         if not isinstance(bind, str) or not bind.isidentifier() or bind.startswith("_"):
             raise ClaimFileError(f"bind must be a variable name, got {bind!r}", place)

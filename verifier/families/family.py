@@ -35,7 +35,7 @@ from ..complex import Complex
 __all__ = [
     "FamilyError", "Param", "FamilyType", "Family", "SeededFamily", "build_family",
     "describe_types", "case_random", "graph_complex", "REQUIRED", "MAX_COUNT",
-    "MAX_SIMPLICES", "MAX_RANDOM_VERTICES",
+    "MAX_SIMPLICES", "MAX_RANDOM_VERTICES", "MAX_NESTING",
 ]
 
 # Limits that keep a request from running away (each named in the errors it causes).
@@ -43,8 +43,11 @@ MAX_COUNT = 10_000_000          # cases drawn by one random family
 MAX_SIMPLICES = 1_000_000       # simplices of one generated or derived case
 MAX_RANDOM_VERTICES = 200       # vertices of one random complex
 
-# Keys of a family table that are not parameters of the family.
-NOT_PARAMETERS = ("family", "bind", "_base")
+MAX_NESTING = 16                # family tables inside one another (refine of join of ...)
+
+# Keys of a family table that are not parameters of the family (those starting with '_'
+# are written by the tool itself: the claim file's folder, the data files' hashes).
+NOT_PARAMETERS = ("family", "bind", "_base", "_sha256")
 
 
 class FamilyError(ValueError):
@@ -57,6 +60,10 @@ class FamilyError(ValueError):
     def __init__(self, message: str, key: tuple = ()):
         super().__init__(message)
         self.key = tuple(key)
+
+
+class _TooDeep(FamilyError):
+    """Family tables nested beyond MAX_NESTING (reported once, not once per level)."""
 
 
 class _Invalid(Exception):
@@ -235,11 +242,14 @@ class _Context:
     base: str | None
     key: tuple = ()
     built: dict = field(default_factory=dict)
+    spec: dict = field(default_factory=dict)     # the table as given (hidden keys included)
 
     def make(self, spec, parameter: str) -> "Family":
         """Build a nested family given as the value of ``parameter``."""
         try:
             inner = build_family(self.registry, spec, self.base, self.key + (parameter,))
+        except _TooDeep:
+            raise
         except FamilyError as error:
             raise FamilyError(f"family {self.family!r}, parameter {parameter!r}: {error}",
                               error.key) from None
@@ -275,6 +285,9 @@ def build_family(registry: dict, spec, base: str | None = None, key: tuple = ())
     if not isinstance(spec, dict):
         raise FamilyError(f"a family is given as a table such as {{ family = \"catalog\" }}, "
                           f"got {_shown(spec)}", key)
+    if len(key) > MAX_NESTING:
+        raise _TooDeep(f"family tables are nested more than {MAX_NESTING} deep (at "
+                       f"{'.'.join(map(str, key[:3]))}...)", key[:1])
     if "family" not in spec:
         raise FamilyError("the table has no 'family' key; known families: "
                           + ", ".join(registry), key)
@@ -290,7 +303,7 @@ def build_family(registry: dict, spec, base: str | None = None, key: tuple = ())
         if not isinstance(base, str):
             raise FamilyError(f"family {name!r}: '_base' must be a folder path, got "
                               f"{_shown(base)}", key + ("_base",))
-    context = _Context(registry, name, base, key)
+    context = _Context(registry, name, base, key, spec=spec)
     names = [p.name for p in kind.params]
     for given in spec:
         if given not in NOT_PARAMETERS and given not in names:

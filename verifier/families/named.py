@@ -11,35 +11,39 @@
     Complexes read from files: one file, or every file of a folder (not its
     sub-folders) with a known suffix, in sorted order.
 
-    ========================  ===================================================
-    ``.txt`` (any other)      one facet per line (see ``Complex.from_file``)
-    ``.json``                 a list of facets, or ``{"facets": [...]}``
-    ``.graphml``              a graph (networkx ``read_graphml``)
-    ``.edgelist``             a graph, one edge "u v" per line (networkx
-                              ``read_edgelist``)
-    ========================  ===================================================
+    Formats, and the sizes checked before a complex is built, are those of
+    :mod:`verifier.families.datafiles` (facet lists as text or JSON, GraphML, edge
+    lists).  Graphs become 1-dimensional complexes or flag complexes (parameter ``as``).
 
-    Graphs become 1-dimensional complexes or flag complexes (parameter ``as``);
-    vertex names that look like integers become integers.  A relative ``path`` is
-    resolved against the folder given as ``_base`` in the table (the claim loader
-    passes the claim file's folder), else against the working directory; the
-    family's spec records that folder as ``_base``.  Case ids: ``file/<file name>``.
+    Where data may come from: a relative ``path`` is resolved against the folder given as
+    ``_base`` in the table (the claim loader passes the claim file's folder), else against
+    the working directory, and must stay inside that folder once ``..`` and symbolic links
+    are resolved; an absolute path, or one leading elsewhere, is refused unless it lies in a
+    folder the user allowed (``verifier run --data-folder DIR``, see
+    :func:`data_folders`).  Only regular files are read (no FIFO, device or socket), each
+    at most ``MAX_DATA_BYTES``.  Every file is read, checked and hashed when the family is
+    built, so a bad file is an error when the claims load, not a failed case; the family's
+    spec records each file's SHA-256 under ``_sha256`` (given back, it names the files and
+    they must still have those hashes: this is how a certificate's data is re-checked).
+    Case ids: ``file/<file name>``.
 """
 
 from __future__ import annotations
 
+import hashlib
 import os
-import re
+from contextlib import contextmanager
 from pathlib import Path
 
-from ..complex import Complex, ComplexError
+from ..complex import Complex
+from ..userfiles import UnreadableFile, inside, read_bytes
 from . import catalog
+from .datafiles import (FACET_SUFFIXES, GRAPH_SUFFIXES, MAX_DATA_BYTES, DataFileError,
+                        complex_from_bytes)
 from .family import Family, FamilyError, FamilyType, Param, _Invalid
 
-__all__ = ["CATALOG", "FILE", "FACET_SUFFIXES", "GRAPH_SUFFIXES"]
-
-FACET_SUFFIXES = (".txt", ".json")
-GRAPH_SUFFIXES = (".graphml", ".edgelist")
+__all__ = ["CATALOG", "FILE", "FACET_SUFFIXES", "GRAPH_SUFFIXES", "data_folders",
+           "allowed_folders", "DataChanged"]
 
 
 # ------------------------------------------------------------------ catalog
@@ -100,79 +104,150 @@ CATALOG = FamilyType(
 
 
 # --------------------------------------------------------------------- files
-def _integer_names(labels):
-    return {v: int(v) if isinstance(v, str) and re.fullmatch(r"-?[0-9]+", v) else v
-            for v in labels}
+DATA_FOLDERS_VARIABLE = "VERIFIER_DATA_FOLDERS"
 
 
-def _read_graph(path: Path):
-    import networkx as nx
+def allowed_folders() -> tuple[str, ...]:
+    """The folders the user allowed data files to come from (besides the claim file's own
+    folder), resolved: ``verifier run --data-folder DIR`` puts them in the environment
+    variable ``VERIFIER_DATA_FOLDERS`` (separated by ``os.pathsep``) for the length of
+    the run, so that worker processes rebuilding the claims see the same allowance."""
+    value = os.environ.get(DATA_FOLDERS_VARIABLE, "")
+    return tuple(os.path.realpath(p) for p in value.split(os.pathsep) if p)
 
+
+@contextmanager
+def data_folders(folders):
+    """Allow ``folders`` (and the claim files' own folders) as sources of data files while
+    the block runs; the previous allowance is restored afterwards."""
+    previous = os.environ.get(DATA_FOLDERS_VARIABLE)
+    joined = os.pathsep.join(os.path.realpath(str(f)) for f in folders)
+    if joined:
+        os.environ[DATA_FOLDERS_VARIABLE] = joined
+    else:
+        os.environ.pop(DATA_FOLDERS_VARIABLE, None)
     try:
-        if path.suffix.lower() == ".graphml":
-            graph = nx.read_graphml(path)
+        yield
+    finally:
+        if previous is None:
+            os.environ.pop(DATA_FOLDERS_VARIABLE, None)
         else:
-            graph = nx.read_edgelist(path, data=False)
-    except Exception as error:  # third-party parsers raise many kinds of errors
-        raise FamilyError(f"{path}: cannot read the graph ({type(error).__name__}: "
-                          f"{error})") from None
-    return nx.relabel_nodes(graph, _integer_names(graph.nodes()))
+            os.environ[DATA_FOLDERS_VARIABLE] = previous
+
+
+class DataChanged(FamilyError):
+    """A data file no longer has the SHA-256 a family's spec records for it."""
+
+
+def _sha256(data: bytes) -> str:
+    return hashlib.sha256(data).hexdigest()
 
 
 class FileFamily(Family):
-    """The complexes stored in one file or in the files of a folder."""
+    """The complexes stored in one file or in the files of a folder.
 
-    def __init__(self, name, params, base, root: Path, files: tuple[str, ...]):
+    The files were read, checked and hashed when the family was built; ``get`` reads a
+    file again and refuses it if its content changed since."""
+
+    def __init__(self, name, params, base, root: str, hashes: dict[str, str]):
         super().__init__(name, params, base)
-        self._root = root           # the folder the file names are relative to
-        self._files = files
+        self._root = root           # the resolved folder the file names are relative to
+        self._hashes = hashes       # file name -> SHA-256 of its content
 
     def _uses_base(self) -> bool:
         return True
 
+    def spec(self) -> dict:
+        table = super().spec()
+        table["_sha256"] = dict(self._hashes)
+        return table
+
     def size(self) -> int:
-        return len(self._files)
+        return len(self._hashes)
 
     def case_ids(self):
-        return (f"file/{name}" for name in self._files)
+        return (f"file/{name}" for name in sorted(self._hashes))
 
     def get(self, case_id) -> Complex:
         if (not isinstance(case_id, str) or not case_id.startswith("file/")
-                or case_id[len("file/"):] not in self._files):
+                or case_id[len("file/"):] not in self._hashes):
             raise self._foreign(case_id, "its ids are 'file/<file name>' for the files found")
-        path = self._root / case_id[len("file/"):]
-        try:
-            if path.suffix.lower() in GRAPH_SUFFIXES:
-                graph = _read_graph(path)
-                K = Complex.from_graph(graph, flag=self.params["as"] == "flag")
-            else:
-                K = Complex.from_file(path)
-        except ComplexError as error:
-            raise FamilyError(f"case {case_id!r}: {error}") from None
-        if K.n_vertices == 0:
-            raise FamilyError(f"case {case_id!r}: {path} holds no vertex")
+        name = case_id[len("file/"):]
+        K, digest = _read_data(os.path.join(self._root, name), name, self.params["as"])
+        if digest != self._hashes[name]:
+            raise FamilyError(f"case {case_id!r}: the data file {name!r} changed after the "
+                              "claims were loaded")
         return K
 
 
+def _read_data(path: str, name: str, kind: str) -> tuple[Complex, str]:
+    try:
+        data = read_bytes(path, "data file", MAX_DATA_BYTES)
+        return complex_from_bytes(data, path, flag=kind == "flag"), _sha256(data)
+    except (UnreadableFile, DataFileError) as error:
+        message = str(error)
+        raise FamilyError(message if message.startswith(path) else f"{path}: {message}") \
+            from None
+
+
+def _inside_allowed(real: str, roots: tuple[str, ...]) -> bool:
+    return any(inside(real, root) for root in roots)
+
+
 def _build_file(params, context):
-    base = Path(context.base) if context.base is not None else Path(os.getcwd())
-    given = Path(params["path"])
-    path = given if given.is_absolute() else base / given
+    base = os.path.realpath(context.base if context.base is not None else os.getcwd())
+    given = params["path"]
+    allowed = allowed_folders()
+    roots = (base,) + allowed
+    hint = ("; data files must lie inside the claim file's folder, or in a folder allowed "
+            "with --data-folder")
+    if "\x00" in given:
+        raise context.error("path", f"{given!r} is not a valid path")
+    if os.path.isabs(given) and not _inside_allowed(os.path.realpath(given), allowed):
+        raise context.error("path", f"absolute path {given!r} refused{hint}")
+    shown = str(Path(base) / given)            # as the user would spell it, in messages
+    path = os.path.realpath(shown)
+    if not _inside_allowed(path, roots):
+        raise context.error("path", f"{given!r} leads to {path!r}, outside {base!r}{hint}")
     known = FACET_SUFFIXES + GRAPH_SUFFIXES
-    if path.is_dir():
-        files = tuple(sorted(p.name for p in path.iterdir()
-                             if p.is_file() and p.suffix.lower() in known))
-        if not files:
-            raise context.error("path", f"folder {str(path)!r} has no file ending in "
-                                + ", ".join(known))
+    recorded = context.spec.get("_sha256") if isinstance(context.spec, dict) else None
+    if recorded is not None:
+        if not (isinstance(recorded, dict) and recorded and all(
+                isinstance(k, str) and isinstance(v, str) and k == os.path.basename(k)
+                and k not in ("", ".", "..") for k, v in recorded.items())):
+            raise context.error(None, "'_sha256' must map plain file names to their SHA-256")
+    if os.path.isdir(path):
         root = path
-    elif path.is_file():
-        files, root = (path.name,), path.parent
+        names = sorted(recorded) if recorded is not None else sorted(
+            entry for entry in os.listdir(path)
+            if os.path.splitext(entry)[1].lower() in known
+            and not os.path.isdir(os.path.join(path, entry)))
+        if not names:
+            raise context.error("path", f"folder {shown!r} has no file ending in "
+                                + ", ".join(known))
+    elif os.path.exists(path):
+        root, names = os.path.dirname(path), [os.path.basename(path)]
     else:
-        raise context.error("path", f"no file or folder {str(path)!r}"
-                            + ("" if given.is_absolute() else
-                               f" ({params['path']!r} relative to {str(base)!r})"))
-    return FileFamily("file", params, str(base), root, files)
+        raise context.error("path", f"no file or folder {shown!r}"
+                            + ("" if os.path.isabs(given) else
+                               f" ({given!r} relative to {base!r})"))
+    hashes = {}
+    for name in names:
+        full = os.path.join(root, name)
+        real = os.path.realpath(full)
+        if not _inside_allowed(real, roots):
+            raise context.error("path", f"{full!r} is a link to {real!r}, outside {base!r}"
+                                + hint)
+        try:
+            _K, digest = _read_data(full, name, params["as"])
+        except FamilyError as error:
+            raise context.error("path", str(error)) from None
+        if recorded is not None and recorded.get(name) != digest:
+            raise DataChanged(f"the data file {name!r} differs from the one the claim was run "
+                              f"with (SHA-256 {digest[:16]}..., recorded "
+                              f"{str(recorded.get(name))[:16]}...)", context.key + ("path",))
+        hashes[name] = digest
+    return FileFamily("file", params, context.base, root, hashes)
 
 
 FILE = FamilyType(
@@ -180,10 +255,12 @@ FILE = FamilyType(
     description="complexes read from a file or a folder of files (facet lists as text or "
             "JSON; graphs as GraphML or edge lists)",
     params=(Param.text("path", "a file, or a folder whose .txt/.json/.graphml/.edgelist "
-                       "files are read; relative to the claim file's folder"),
+                       "files are read; relative to the claim file's folder, and inside it "
+                       "unless another folder is allowed with --data-folder"),
             Param.choice("as", ("1-dimensional", "flag"),
                          "how graph files become complexes (facet files ignore it)",
                          default="1-dimensional")),
     build=_build_file,
-    reference="file formats: Complex.from_file; networkx read_graphml, read_edgelist",
+    reference="file formats: verifier.families.datafiles; networkx read_graphml, "
+              "read_edgelist",
 )

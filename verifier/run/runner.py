@@ -15,21 +15,120 @@ from __future__ import annotations
 
 import hashlib
 import json
+import math
+import os
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..claims.evaluate import Limits
 from ..claims.loader import Claim, load_paths
+from ..families.named import data_folders
 from .cases import _claims as _claims_cache
 from .cases import complexes_of, family_label, limits_dict, plan, run_batch, sources_of
 from .engines import Batch, DaskEngine, InlineEngine, ProcessEngine
 from .shrink import shrink
-from .store import Store, verdict_of
+from .store import Store, StoreError, check_store_path, verdict_of
 
-__all__ = ["run", "RunOptions", "ClaimResult", "RunResult", "digest_of", "ENGINES"]
+__all__ = ["run", "RunOptions", "ClaimResult", "RunResult", "digest_of", "ENGINES",
+           "OptionError", "check_options", "check_output_folder", "max_workers",
+           "MAX_CASE_SECONDS"]
 
 ENGINES = {"processes": ProcessEngine, "inline": InlineEngine, "dask": DaskEngine}
+
+WORKERS_PER_CORE = 4                # the most worker processes per core a run may start
+MAX_CASE_SECONDS = 7 * 86_400.0     # one week: the longest time one case may be given
+MAX_CASES = 10**12
+
+
+class OptionError(ValueError):
+    """An option of a run is out of range, or a path it names cannot be used; the message
+    names the option and says what is valid.  Raised before any work."""
+
+
+def max_workers() -> int:
+    """The most workers a run may start: WORKERS_PER_CORE per core of this machine."""
+    return WORKERS_PER_CORE * (os.cpu_count() or 1)
+
+
+def _physical_megabytes() -> int | None:
+    try:
+        return os.sysconf("SC_PAGE_SIZE") * os.sysconf("SC_PHYS_PAGES") // 2**20
+    except (ValueError, OSError, AttributeError):
+        return None
+
+
+def _whole(value) -> bool:
+    return isinstance(value, int) and not isinstance(value, bool)
+
+
+def check_options(options: "RunOptions") -> None:
+    """Refuse options that make no sense, naming the option and what is valid.
+
+    >>> check_options(RunOptions(case_timeout=float("nan")))
+    Traceback (most recent call last):
+    ...
+    verifier.run.runner.OptionError: --case-timeout must be a number of seconds with 0 < seconds <= 604800, got nan
+    """
+    if options.engine not in ENGINES:
+        raise OptionError(f"--engine must be one of {', '.join(ENGINES)}, got "
+                          f"{options.engine!r}")
+    top = max_workers()
+    if options.workers is not None and not (_whole(options.workers)
+                                            and 1 <= options.workers <= top):
+        raise OptionError(f"--workers must be an integer from 1 to {top} ({WORKERS_PER_CORE} "
+                          f"per core on this machine), got {options.workers!r}")
+    timeout = options.case_timeout
+    if not (isinstance(timeout, (int, float)) and not isinstance(timeout, bool)
+            and math.isfinite(timeout) and 0 < timeout <= MAX_CASE_SECONDS):
+        raise OptionError(f"--case-timeout must be a number of seconds with 0 < seconds <= "
+                          f"{MAX_CASE_SECONDS:.0f}, got {timeout!r}")
+    if options.max_cases is not None and not (_whole(options.max_cases)
+                                              and 1 <= options.max_cases <= MAX_CASES):
+        raise OptionError(f"--max-cases must be an integer from 1 to {MAX_CASES:,}, got "
+                          f"{options.max_cases!r}")
+    memory = _physical_megabytes()
+    if options.case_memory is not None and not (
+            _whole(options.case_memory) and 1 <= options.case_memory
+            and (memory is None or options.case_memory <= memory)):
+        limit = f"from 1 to {memory} (this machine's memory)" if memory else "of at least 1"
+        raise OptionError(f"--case-memory must be a number of megabytes {limit}, got "
+                          f"{options.case_memory!r}")
+    if options.batch_size is not None and not (_whole(options.batch_size)
+                                               and 1 <= options.batch_size <= 1_000_000):
+        raise OptionError(f"batch size must be an integer from 1 to 1000000, got "
+                          f"{options.batch_size!r}")
+    shrink_seconds = options.shrink_seconds
+    if not (isinstance(shrink_seconds, (int, float)) and math.isfinite(shrink_seconds)
+            and 0 < shrink_seconds <= MAX_CASE_SECONDS):
+        raise OptionError(f"shrinking time must be a number of seconds with 0 < seconds <= "
+                          f"{MAX_CASE_SECONDS:.0f}, got {shrink_seconds!r}")
+    if options.scheduler is not None and options.engine != "dask":
+        raise OptionError("--scheduler needs --engine dask")
+    for folder in options.data_folders:
+        if not os.path.isdir(folder):
+            raise OptionError(f"--data-folder {str(folder)!r}: no such folder")
+
+
+def check_output_folder(folder: str | Path, option: str) -> None:
+    """Refuse an output folder that cannot be written, before any work: it must be a
+    folder (or creatable under one) in which files can be created.  Creates nothing."""
+    path = Path(folder)
+    if path.exists() and not path.is_dir():
+        raise OptionError(f"{option} {str(folder)!r} is a file, not a folder")
+    ancestor = path if path.is_dir() else next(
+        (p for p in path.parents if os.path.lexists(p)), Path("."))
+    if not ancestor.is_dir():
+        raise OptionError(f"{option} {str(folder)!r} cannot be created: {str(ancestor)!r} is "
+                          "a file, not a folder")
+    import tempfile
+    try:
+        handle, probe = tempfile.mkstemp(dir=ancestor, prefix=".verifier-probe-")
+    except OSError as error:
+        raise OptionError(f"{option} {str(folder)!r}: cannot create files in "
+                          f"{str(ancestor)!r} ({error.strerror or error})") from None
+    os.close(handle)
+    os.unlink(probe)
 
 
 @dataclass
@@ -44,6 +143,8 @@ class RunOptions:
     case_timeout: float = 60.0
     batch_size: int | None = None
     shrink_seconds: float = 300.0
+    data_folders: tuple = ()               # folders a `file` family may read besides the
+                                           # claim file's own (verifier run --data-folder)
 
 
 @dataclass
@@ -137,21 +238,38 @@ def run(paths, options: RunOptions | None = None, progress=None) -> RunResult:
     (the command line passes a rich progress bar); None for silence.
     """
     options = options or RunOptions()
+    check_options(options)
+    with data_folders(options.data_folders):
+        return _run(paths, options, progress)
+
+
+def _run(paths, options: RunOptions, progress) -> RunResult:
     started = time.monotonic()
     claims = load_paths(paths)
     files = sources_of(claims)
     request = request_of(claims, options)
     run_id = hashlib.sha256(json.dumps(request, sort_keys=True).encode()).hexdigest()[:16]
+    try:
+        check_store_path(options.store)
+    except StoreError as error:
+        raise OptionError(f"--store: {error}") from None
+    if options.resume and not Path(options.store).is_file():
+        raise OptionError(f"--resume: nothing to resume: there is no store "
+                          f"{str(options.store)!r} (run without --resume to start a run)")
     store = Store(options.store)
     try:
         if not options.resume:
             run_id = f"{run_id}-{int(time.time() * 1000)}"
         else:
             previous = [r for r in store.unfinished_runs() if r.startswith(run_id)]
-            if previous:
-                run_id = previous[0]
-            else:
-                run_id = f"{run_id}-{int(time.time() * 1000)}"
+            if not previous:
+                finished = [r[0] for r in store.runs() if r[0].startswith(run_id)]
+                state = (f"the last run of these claims ({finished[0]}) is finished"
+                         if finished else "it holds no interrupted run of these claims with "
+                         "these options")
+                raise OptionError(f"--resume: nothing to resume in {str(options.store)!r}: "
+                                  f"{state} (run without --resume to start a new run)")
+            run_id = previous[0]
         resumed = store.open_run(run_id, request, options.engine)
         _claims_cache(files)   # loaded once here; forked workers inherit it
         engine_class = ENGINES[options.engine]

@@ -12,11 +12,87 @@ Only the runner's client process writes; workers never touch the store.
 from __future__ import annotations
 
 import json
+import os
 import sqlite3
 import time
 from pathlib import Path
 
-__all__ = ["Store", "OUTCOMES", "UNSETTLED", "verdict_of"]
+__all__ = ["Store", "StoreError", "OUTCOMES", "UNSETTLED", "verdict_of", "check_store_path"]
+
+
+class StoreError(Exception):
+    """The store cannot be used (a folder, read-only, not a store, under a file): the
+    message names the path and what is wrong; raised before any case runs."""
+
+
+_TABLES = {"runs", "cases", "counterexamples"}
+
+
+def _writable_folder(folder: Path, what: str) -> None:
+    """Prove that files can be created in ``folder`` by creating (and removing) one."""
+    import tempfile
+    try:
+        handle, probe = tempfile.mkstemp(dir=folder, prefix=".verifier-probe-")
+    except OSError as error:
+        raise StoreError(f"{what}: cannot create files in {str(folder)!r} "
+                         f"({error.strerror or error})") from None
+    os.close(handle)
+    os.unlink(probe)
+
+
+def _existing_ancestor(path: Path) -> Path:
+    for parent in path.parents:
+        if os.path.lexists(parent):
+            return parent
+    return Path(".")
+
+
+def check_store_path(path: str | Path) -> None:
+    """Refuse a store path that cannot work, before anything is created or run.
+
+    A store is an SQLite file (or a path where one can be created): not a folder, not a
+    special file, not under a file, in a folder where files can be created (SQLite writes
+    its journal beside the store), writable itself, and either empty or a store of ours.
+    """
+    path = Path(path)
+    what = f"store {str(path)!r}"
+    if path.is_dir():
+        raise StoreError(f"{what} is a folder; --store names an SQLite file (for example "
+                         f"{str(path / 'verifier.sqlite')!r})")
+    if os.path.lexists(path) and not path.is_file():
+        raise StoreError(f"{what} is not a regular file")
+    ancestor = path.parent if path.parent.exists() else _existing_ancestor(path)
+    if not ancestor.is_dir():
+        raise StoreError(f"{what} cannot be created: {str(ancestor)!r} is a file, not a folder")
+    _writable_folder(ancestor, what)
+    if not path.exists():
+        return
+    try:
+        os.close(os.open(path, os.O_RDWR))
+    except OSError as error:
+        raise StoreError(f"{what} cannot be written ({error.strerror or error})") from None
+    if path.stat().st_size == 0:
+        return
+    try:
+        with open(path, "rb") as handle:
+            magic = handle.read(16)
+    except OSError as error:
+        raise StoreError(f"{what} cannot be read ({error.strerror or error})") from None
+    if magic != b"SQLite format 3\x00":
+        raise StoreError(f"{what} is not an SQLite file (a store is one); name a new file or "
+                         "an existing store")
+    try:
+        db = sqlite3.connect(f"file:{path}?mode=ro", uri=True, timeout=30)
+        try:
+            tables = {row[0] for row in db.execute(
+                "SELECT name FROM sqlite_master WHERE type = 'table'")}
+        finally:
+            db.close()
+    except sqlite3.DatabaseError as error:
+        raise StoreError(f"{what} cannot be opened as a store ({error})") from None
+    if tables and not tables & _TABLES:
+        raise StoreError(f"{what} is an SQLite database of something else (tables: "
+                         f"{', '.join(sorted(tables)[:5])}); name a new file or a store")
 
 OUTCOMES = ("holds", "fails", "outside", "error", "limit", "weak", "undecided")
 UNSETTLED = ("error", "limit", "weak", "undecided")   # cases that settle nothing either way
@@ -81,15 +157,24 @@ class Store:
 
     def __init__(self, path: str | Path):
         self.path = Path(path)
-        self.path.parent.mkdir(parents=True, exist_ok=True)
-        self.db = sqlite3.connect(str(self.path), timeout=30)
-        self.db.execute("PRAGMA journal_mode=WAL")
-        self.db.execute("PRAGMA synchronous=NORMAL")
-        self.db.executescript(SCHEMA)
-        columns = {row[1] for row in self.db.execute("PRAGMA table_info(cases)")}
-        if "certified" not in columns:       # a store written before certified values
-            self.db.execute("ALTER TABLE cases ADD COLUMN certified TEXT")
-        self.db.commit()
+        try:
+            self.path.parent.mkdir(parents=True, exist_ok=True)
+            self.db = sqlite3.connect(str(self.path), timeout=30)
+        except (OSError, sqlite3.Error) as error:
+            raise StoreError(f"store {str(self.path)!r} cannot be opened "
+                             f"({getattr(error, 'strerror', None) or error})") from None
+        try:
+            self.db.execute("PRAGMA journal_mode=WAL")
+            self.db.execute("PRAGMA synchronous=NORMAL")
+            self.db.executescript(SCHEMA)
+            columns = {row[1] for row in self.db.execute("PRAGMA table_info(cases)")}
+            if "certified" not in columns:       # a store written before certified values
+                self.db.execute("ALTER TABLE cases ADD COLUMN certified TEXT")
+            self.db.commit()
+        except sqlite3.Error as error:
+            self.db.close()
+            raise StoreError(f"store {str(self.path)!r} cannot be used as a store "
+                             f"({error})") from None
 
     def close(self):
         self.db.close()
