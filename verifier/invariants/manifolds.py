@@ -24,6 +24,9 @@ __all__ = ["NotDecided", "is_sphere", "is_ball", "is_closed_manifold", "is_manif
            "is_manifold_with_boundary"]
 
 
+SMALL_COLLAPSE = 2_000    # complexes up to this size collapse in plain Python
+
+
 class NotDecided(ValueError):
     """A yes/no invariant that our methods cannot decide for this input (says why)."""
 
@@ -163,6 +166,111 @@ def _collapses_to_point(simplices: set[tuple[int, ...]], attempts: int = 8) -> b
     return False
 
 
+def _collapses(K: Complex, without: tuple | None = None, attempts: int = 8) -> bool:
+    """Does K (minus the facet ``without``) collapse to a point by greedy elementary
+    collapses in one of ``attempts`` orders?  True is a witness of collapsibility.
+
+    Small complexes go through :func:`_collapses_to_point`; large ones through a compiled
+    worklist version of the same greedy rule (:func:`_collapse_kernel`): a free face s
+    (exactly one coface t, which has no coface) is removed with t, and the faces of s and
+    t whose coface counts drop are examined again.  Linear in the number of simplices
+    times the square of the dimension.
+    """
+    if len(K.simplices) <= SMALL_COLLAPSE:
+        simplices = set(K.simplices)
+        return _collapses_to_point(simplices - {without} if without else simplices, attempts)
+    import random
+    offsets = K.dimension_offsets()
+    n = len(K.simplices)
+    face_start = np.zeros(n + 1, dtype=np.int64)
+    codimension_one = [k + 1 if k else 0 for k in range(K.dim + 1)]     # faces per simplex
+    face_start[1:] = np.cumsum(np.repeat(codimension_one, K.f_vector))
+    faces = np.concatenate([np.zeros(0, dtype=np.int64)] +
+                           [K.face_positions(k).ravel() for k in range(1, K.dim + 1)])
+    owner = np.repeat(np.arange(n), np.diff(face_start))
+    order = np.argsort(faces, kind="stable")
+    coface_start = np.concatenate([[0], np.cumsum(np.bincount(faces, minlength=n))])
+    cofaces = owner[order]
+    alive = np.ones(n, dtype=np.bool_)
+    if without is not None:
+        alive[offsets[len(without) - 1] + int(np.searchsorted(
+            K.simplex_keys(len(without) - 1),
+            _keys(K, np.array([without], dtype=np.int64))[0]))] = False
+    kernel = _collapse_kernel()
+    for attempt in range(attempts):
+        visit = np.concatenate([np.arange(offsets[k], offsets[k + 1], dtype=np.int64)
+                                for k in range(K.dim, -1, -1)])   # higher dimensions first
+        if attempt:                         # a seeded shuffle within each dimension
+            shuffled = visit.tolist()
+            random.Random(attempt).shuffle(shuffled)
+            shuffled = np.array(shuffled, dtype=np.int64)
+            dims = np.repeat(np.arange(K.dim + 1), K.f_vector)
+            visit = shuffled[np.argsort(-dims[shuffled], kind="stable")]
+        if kernel(face_start, faces, coface_start, cofaces, alive.copy(), visit) == 1:
+            return True
+    return False
+
+
+_KERNEL: list = []
+
+
+def _collapse_kernel():
+    """The compiled greedy collapse (numba), compiled on first use and cached on disk."""
+    if _KERNEL:
+        return _KERNEL[0]
+    import numba
+
+    @numba.njit(cache=True)
+    def collapse(face_start, faces, coface_start, cofaces, alive, visit):
+        n = len(alive)
+        count = np.zeros(n, dtype=np.int64)          # alive cofaces of each simplex
+        for t in range(n):
+            if alive[t]:
+                for a in range(face_start[t], face_start[t + 1]):
+                    count[faces[a]] += 1
+        queue = np.empty(len(visit) + 2 * len(faces) + 1, dtype=np.int64)
+        queue[:len(visit)] = visit                     # first in, first out, like sweeps
+        head, tail = 0, len(visit)
+        # every decrement queues at most one simplex, and every simplex whose count reaches
+        # 0 queues its faces once: at most 2 |faces| entries after the initial ones
+        remaining = 0
+        for s in range(n):
+            if alive[s]:
+                remaining += 1
+        while head < tail and remaining > 1:
+            s = queue[head]
+            head += 1
+            if not alive[s] or count[s] != 1:
+                continue
+            t = -1
+            for a in range(coface_start[s], coface_start[s + 1]):
+                if alive[cofaces[a]]:
+                    t = cofaces[a]
+                    break
+            if count[t] != 0:
+                continue
+            alive[s] = False                           # the elementary collapse of (s, t)
+            alive[t] = False
+            remaining -= 2
+            for x in (s, t):
+                for a in range(face_start[x], face_start[x + 1]):
+                    f = faces[a]
+                    count[f] -= 1
+                    if not alive[f]:
+                        continue
+                    if count[f] == 1:
+                        queue[tail] = f
+                        tail += 1
+                    elif count[f] == 0:            # f became maximal: its faces may be free
+                        for b in range(face_start[f], face_start[f + 1]):
+                            queue[tail] = faces[b]
+                            tail += 1
+        return remaining
+
+    _KERNEL.append(collapse)
+    return collapse
+
+
 def _greedy_collapse(simplices: set[tuple[int, ...]], order: list) -> bool:
     """One greedy sequence of elementary collapses, free faces taken in ``order``."""
     alive = set(simplices)
@@ -216,7 +324,7 @@ def is_sphere(K: Complex, d: int | None = None) -> bool:
         return euler(K) == 2
     if euler(K) != (2 if d % 2 == 0 else 0) or any(betti(K, p=2)[1:d]):
         return False
-    if _collapses_to_point(set(K.simplices) - {K.facets[0]}):
+    if _collapses(K, without=K.facets[0]):
         return True
     raise NotDecided(f"could not decide whether a {d}-manifold with the homology of a sphere "
                      "is a PL sphere (greedy collapse got stuck)")
@@ -249,7 +357,7 @@ def is_ball(K: Complex, d: int | None = None) -> bool:
         return euler(K) == 1
     if euler(K) != 1 or not is_sphere(operations.boundary(K), d - 1):
         return False
-    if _collapses_to_point(set(K.simplices)):
+    if _collapses(K):
         return True
     raise NotDecided(f"could not decide whether a {d}-manifold with sphere boundary is a ball "
                      "(greedy collapse got stuck)")
