@@ -64,7 +64,8 @@ def test_vectorised_closure_is_the_generated_complex(vectorised):
     rng = random.Random(101)
     for trial in range(60):
         n = rng.randint(1, 30)
-        facets = [rng.sample(range(n), rng.randint(0, min(n, 6))) for _ in range(rng.randint(1, 40))]
+        facets = [rng.sample(range(n), rng.randint(0, min(n, 6)))
+                  for _ in range(rng.randint(1, 40))]
         if trial % 3 == 1:
             facets = [[f"v{x}" for x in f] for f in facets]
         if trial % 3 == 2:

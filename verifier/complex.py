@@ -344,9 +344,9 @@ class Complex:
         Returned as two parallel int64 arrays ``(faces, cofaces)``; there are
         sum over z of (2^|z| - 1) pairs.  This is the incidence structure of the face
         poset, from which the connection matrix, its factorisation and the Green
-        function are built.  Computed by looking every subset of every simplex up among the simplices of its
-        dimension (a vectorised binary search over lexicographic row keys); the pairs
-        come grouped by the coface's dimension and by subset.
+        function are built.  Computed by looking every subset of every simplex up among
+        the simplices of its dimension (a vectorised binary search over lexicographic row
+        keys); the pairs come grouped by the coface's dimension and by subset.
         """
         def compute():
             offsets = self.dimension_offsets()
