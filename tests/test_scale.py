@@ -341,3 +341,18 @@ def test_green_of_the_refined_poincare_sphere():
     w = omega(K)
     star_euler = np.bincount(faces, weights=w[cofaces], minlength=len(K.simplices))
     assert g.trace() == int(star_euler.sum())
+
+
+def test_poincare_hopf_indices_at_once_follow_the_definition():
+    # Definition [PH] (O. Knill, arXiv:1201.1162): i_f(v) = 1 - chi(S^-(v)), S^-(v) the
+    # simplices x of the link of v with f < f(v) on x; brute force over all simplices,
+    # for random injective f; and sum_v i_f(v) = chi (Poincare-Hopf, same reference).
+    rng = random.Random(16)
+    for K in random_complexes(60, seed=15, max_vertices=8, max_dim=3):
+        f = rng.sample(range(100), K.n_vertices)
+        brute = [1 - inv.euler([x for x in K.simplices
+                                if all(f[w] < f[v] for w in x)
+                                and tuple(sorted(x + (v,))) in K.index])
+                 for v in range(K.n_vertices)]
+        assert inv.indices(K, f) == brute == [inv.index(K, f, v) for v in range(K.n_vertices)]
+        assert sum(brute) == inv.euler(K)
