@@ -552,12 +552,23 @@ def _boundary_faces(K: Complex) -> list[tuple[int, ...]]:
         raise OperationError(
             f"the boundary is defined for pure complexes (all facets of one dimension); "
             f"this complex has facets of dimensions {dims}")
+    if len(K.simplices) > SMALL_INPUT and K.dim >= 1:
+        return [tuple(face) for face in K.simplex_array(K.dim - 1)[_free_faces(K)].tolist()]
     count: dict[tuple[int, ...], int] = {}
     for f in K.facets:
         for face in combinations(f, len(f) - 1):
             if face:
                 count[face] = count.get(face, 0) + 1
     return [face for face, c in count.items() if c == 1]
+
+
+def _free_faces(K: Complex):
+    """Indices (among the (d-1)-simplices) of the faces in exactly one facet of a pure
+    d-complex, d >= 1, counted from the face table in one pass."""
+    import numpy as np
+    d = K.dim
+    below = K.face_positions(d).ravel() - K.dimension_offsets()[d - 1]
+    return np.flatnonzero(np.bincount(below, minlength=K.f_vector[d - 1]) == 1)
 
 
 def boundary(K: Complex) -> Complex:
@@ -602,6 +613,15 @@ def interior(K: Complex) -> frozenset[int]:
     >>> sorted(K.label_of(K.simplices[j]) for j in interior(K))
     [(0, 1, 2), (0, 2), (0, 2, 3)]
     """
+    if len(K.simplices) > SMALL_INPUT and K.dim >= 1:
+        import numpy as np
+        _boundary_faces(K)                                   # purity, with its message
+        free = np.zeros(len(K.simplices), dtype=bool)
+        free[K.dimension_offsets()[K.dim - 1] + _free_faces(K)] = True
+        faces, cofaces = K.containments()
+        on_boundary = np.zeros(len(K.simplices), dtype=bool)
+        on_boundary[faces[free[cofaces]]] = True               # faces of free faces
+        return frozenset(np.flatnonzero(~on_boundary).tolist())
     on_boundary = {y for face in _boundary_faces(K) for k in range(1, len(face) + 1)
                    for y in combinations(face, k)}
     return frozenset(j for j, z in enumerate(K.simplices) if z not in on_boundary)
