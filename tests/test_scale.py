@@ -379,3 +379,12 @@ def test_boundary_and_interior_of_large_complexes_follow_the_definition(vectoris
             {K.label_of(s) for s in K.simplices} - expected
     B = ops.refine(catalog.complex("ball-3"), 2)        # its boundary: a refined 2-sphere
     assert inv.euler(ops.boundary(B)) == 2 and inv.is_sphere(ops.boundary(B))
+
+
+def test_matrices_with_a_proposed_congruence_still_pickle():
+    # Worker processes exchange matrices by pickling; the proposal is dropped on the way
+    # (it is only a hint) and the entries survive (common practice, no source).
+    import pickle
+    L = inv.connection(catalog.complex("torus-7"))
+    again = pickle.loads(pickle.dumps(L))
+    assert again == L and again.congruence is None and L.congruence is not None

@@ -88,6 +88,11 @@ class Matrix:
     def __delattr__(self, name):
         raise AttributeError("Matrix is immutable")
 
+    def __reduce__(self):
+        """Pickled without the proposed congruence (a hint that may hold a function of
+        the complex; the receiver can always do without it)."""
+        return (Matrix, (self.shape, self._int, self._dense, self.provenance))
+
     def with_provenance(self, text: str) -> "Matrix":
         """The same matrix, recording how it was obtained."""
         return Matrix(self.shape, self._int, self._dense, text, self.congruence)
