@@ -305,8 +305,11 @@ def _claim(i: int, table: dict, positions: _Positions, path: Path, make_family) 
                                  f"{{ family = \"catalog\" }}, got {_shown(entry)}", place)
         hidden = _hidden_key(entry)
         if hidden:
+            top = next(k for k, v in entry.items() if k == hidden or _hidden_key(
+                v if isinstance(v, dict) else {"": v}) == hidden)
             raise ClaimFileError(f"unknown key '{hidden}' in 'over' entry (keys starting with "
-                                 "'_' are reserved for the tool)", place)
+                                 "'_' are reserved for the tool)",
+                                 positions.place(i, top, over=j) if place.line else place)
         bind = entry.get("bind", "K")
         if not isinstance(bind, str) or not bind.isidentifier() or bind.startswith("_"):
             raise ClaimFileError(f"bind must be a variable name, got {bind!r}", place)
