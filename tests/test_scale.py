@@ -388,3 +388,22 @@ def test_matrices_with_a_proposed_congruence_still_pickle():
     L = inv.connection(catalog.complex("torus-7"))
     again = pickle.loads(pickle.dumps(L))
     assert again == L and again.congruence is None and L.congruence is not None
+
+
+def test_large_connection_matrix_is_the_intersection_pattern():
+    # Definition [FD]: L[x, y] = 1 when the simplices x and y intersect.  Brute force over
+    # all pairs on a complex past the dense threshold, and the scipy product V V^T
+    # (support) as a second reference on a larger one.
+    import scipy.sparse as sp
+
+    K = ops.refine(catalog.complex("projective-plane-6"), 2)       # 1,081 simplices
+    sets = [set(s) for s in K.simplices]
+    assert len(sets) ** 2 > connection_module.DENSE_MAX
+    expected = [[int(bool(a & b)) for b in sets] for a in sets]
+    assert inv.connection(K).rows() == expected
+    H = ops.refine(catalog.complex("lens-2-1"))
+    rows, cols = H.vertex_incidence()
+    V = sp.csr_array((np.ones(len(rows)), (rows, cols)), shape=(len(H.simplices), H.n_vertices))
+    product = (V @ V.T).tocsr()
+    L = inv.connection(H).to_scipy()
+    assert L.nnz == product.nnz and (L != (product > 0).astype(np.int64)).nnz == 0

@@ -34,7 +34,8 @@ __all__ = [
     "Verdict", "det", "rank", "rank_mod", "inverse", "inverse_many", "verified_inverse_batch", "is_inverse", "charpoly",
     "charpoly_of_square", "signature", "unit_ldl", "multiplicity", "kernel_dim",
     "charpoly_is_reciprocal", "invariant_factors", "FLOAT_PROPOSAL_MAX",
-    "congruence_holds", "gram_support_congruence_holds", "inverse_by_congruence",
+    "congruence_holds", "gram_support", "gram_support_congruence_holds",
+    "inverse_by_congruence",
 ]
 
 FLOAT_PROPOSAL_MAX = 2500       # largest order for which a float inverse is proposed
@@ -584,7 +585,29 @@ def _kernels() -> dict:
                 return False
         return True
 
-    _KERNELS.update(congruence_rows=congruence_rows, gram_support_rows=gram_support_rows)
+    @numba.njit(cache=True)
+    def support_rows(n, a_ptr, a_idx, at_ptr, at_idx, indptr, indices, fill):
+        """Row x of support(A A^T): the y sharing a column with x.  With ``fill`` False,
+        count them into indptr[x + 1]; with ``fill`` True, write them, sorted."""
+        last = np.full(n, -1, dtype=np.int64)
+        for x in range(n):
+            p = indptr[x] if fill else 0
+            for a in range(a_ptr[x], a_ptr[x + 1]):
+                v = a_idx[a]
+                for b in range(at_ptr[v], at_ptr[v + 1]):
+                    y = at_idx[b]
+                    if last[y] != x:
+                        last[y] = x
+                        if fill:
+                            indices[p] = y
+                        p += 1
+            if fill:
+                indices[indptr[x]:p] = np.sort(indices[indptr[x]:p])
+            else:
+                indptr[x + 1] = p
+
+    _KERNELS.update(congruence_rows=congruence_rows, gram_support_rows=gram_support_rows,
+                    support_rows=support_rows)
     return _KERNELS
 
 
@@ -650,6 +673,38 @@ def congruence_holds(M: Matrix, Z: Matrix, d) -> bool:
         return False
     m = M.to_scipy().tocsr()
     return bool(_kernels()["congruence_rows"](M.shape[0], *columns, *rows, d, *_csr_parts(m)))
+
+
+def gram_support(A: Matrix) -> Matrix:
+    """The 0/1 matrix support(A A^T) of a nonnegative integer matrix A: entry (x, y) is 1
+    when rows x and y of A have a nonzero in a common column.
+
+    For A the simplex-vertex incidence this is the connection matrix.  Built row by row
+    (the union of the columns met by row x), counted first and then written, so the
+    product A A^T is never formed.
+
+    >>> gram_support(Matrix.from_rows([[1, 0], [0, 1], [1, 1]])).rows()
+    [[1, 0, 1], [0, 1, 1], [1, 1, 1]]
+    """
+    import scipy.sparse as sp
+
+    if not A.is_int64 or (A.nnz() and A.to_scipy().data.min() < 0):
+        raise ExactError("support(A A^T) is built for nonnegative integer matrices")
+    n = A.shape[0]
+    a = A.to_scipy().tocsr()
+    a.eliminate_zeros()
+    at = a.T.tocsr()
+    support_rows = _kernels()["support_rows"]
+    indptr = np.zeros(n + 1, dtype=np.int64)
+    support_rows(n, a.indptr, a.indices, at.indptr, at.indices, indptr,
+                 np.zeros(0, dtype=np.int64), False)
+    np.cumsum(indptr, out=indptr)
+    width = np.int32 if max(n, int(indptr[-1])) < 2 ** 31 else np.int64
+    indices = np.empty(int(indptr[-1]), dtype=width)
+    support_rows(n, a.indptr, a.indices, at.indptr, at.indices, indptr, indices, True)
+    pattern = sp.csr_array((np.ones(len(indices), dtype=np.int64), indices,
+                            indptr.astype(width)), shape=(n, n))
+    return Matrix((n, n), int64=pattern)
 
 
 def gram_support_congruence_holds(A: Matrix, Z: Matrix, d) -> bool:

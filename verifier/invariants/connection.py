@@ -14,13 +14,12 @@ from __future__ import annotations
 from collections.abc import Iterable
 
 import numpy as np
-import scipy.sparse as sp
 
 from .. import exact
 from ..complex import Complex
 from ..exact import Matrix
 from ..exact.matrix import DENSE_MAX
-from ..exact.linalg import gram_support_congruence_holds, inverse_by_congruence
+from ..exact.linalg import gram_support, gram_support_congruence_holds, inverse_by_congruence
 from .counting import _omega_vector
 
 __all__ = ["connection", "fredholm", "green", "green_many", "green_by_inversion"]
@@ -40,7 +39,8 @@ def connection(K: Complex) -> Matrix:
     >>> connection(Complex.from_facets([[1, 2]])).rows()    # order: 1, 2, {1,2}
     [[1, 0, 1], [0, 1, 1], [1, 1, 1]]
 
-    Built sparse as the support of V V^T, V the simplex-vertex incidence matrix.  The
+    Built sparse as the support of V V^T, V the simplex-vertex incidence matrix (row by
+    row for large complexes, :func:`verifier.exact.linalg.gram_support`).  The
     matrix carries the proposed factorisation L = Z^T diag(omega) Z (Z the containment
     matrix, built only when asked for), which :func:`verifier.exact.signature` and
     :func:`verifier.exact.det` verify exactly before they use it.
@@ -48,16 +48,12 @@ def connection(K: Complex) -> Matrix:
     """
     if not K.simplices:
         return Matrix.zeros(0)
-    rows, cols = K.vertex_incidence()
     n = len(K.simplices)
+    V = _vertex_incidence(K)
     if n * n <= DENSE_MAX:
-        L = (_vertex_incidence(K) @ _vertex_incidence(K).T).support()
-    else:                        # (V V^T)[x, y] = number of common vertices, at most dim + 1
-        V = sp.csr_array((np.ones(len(rows), dtype=np.int64), (rows, cols)),
-                         shape=(n, K.n_vertices))
-        shared = V @ V.T
-        shared.data[:] = 1
-        L = Matrix((n, n), int64=shared)
+        L = (V @ V.T).support()  # (V V^T)[x, y] = number of common vertices
+    else:                        # the same pattern, row by row without the product
+        L = gram_support(V)
     return L.with_congruence(lambda: (_containment(K), _omega_vector(K)))
 
 
