@@ -162,6 +162,21 @@ def test_check_compares_the_announced_plan_before_planning(tmp_path):
         "10,000,000 cases, it says 58 (nothing was evaluated)")
 
 
+def test_check_refuses_a_counterexample_too_large_to_rebuild(tmp_path):
+    # a resealed counterexample whose complex is one 30-vertex facet (2^30 - 1 faces):
+    # refused from its facet sizes, before the re-check process builds anything
+    claim = {"name": "big", "statement": "euler(K) == 0", "where": None,
+             "over": [{"family": "catalog", "bind": "K"}]}
+    claim["sha256"] = hashlib.sha256(canonical(claim).encode()).hexdigest()
+    path = tmp_path / "big.json"
+    path.write_text(json.dumps(seal({"schema": "simplicial-verifier/certificate/1",
+                                     "kind": "counterexample", "claim": claim,
+                                     "complex": {"facets": [list(range(30))]}, "values": []})))
+    assert refused(cli("check", path, timeout=30)) == (
+        f"error: {path}: refused before re-checking: complex, facet 0: a facet of 30 vertices "
+        "has 1,073,741,823 faces, more than the 1,000,000 simplices allowed for one complex")
+
+
 # ============================================================ §4: verifier show
 def test_show_refuses_a_22_vertex_facet_before_building_it(tmp_path):
     path = tmp_path / "facet22.txt"
@@ -412,6 +427,13 @@ def test_read_only_places_are_refused_before_any_work(tmp_path, capsys):
     assert message.startswith("error: --certificates '/sys/certs': cannot create files in "
                               "'/sys' (")
     assert files_in(tmp_path) == ["r.toml"]
+
+
+def test_summary_of_a_store_that_is_a_folder(tmp_path, capsys):
+    store = tmp_path / "folder.sqlite"
+    store.mkdir()
+    assert refused_in_process(capsys, "summary", "--store", store) == (
+        f"error: store {str(store)!r} cannot be opened (unable to open database file)")
 
 
 @pytest.mark.skipif(os.geteuid() == 0, reason="permissions do not bind root")

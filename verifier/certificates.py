@@ -189,6 +189,29 @@ def _load(path: Path) -> dict:
     return data
 
 
+def oversized(data: dict) -> str | None:
+    """What is too large to re-check in a certificate's complexes (each complex's simplex
+    count predicted from its facets, before anything is built), or None."""
+    from .families.datafiles import DataFileError, count_simplices
+    from .families.family import MAX_SIMPLICES
+    blocks = [("complex", data.get("complex"))]
+    for key, holder in (("complexes", data.get("complexes")),
+                        ("original.complexes", (data.get("original") or {}).get("complexes")
+                         if isinstance(data.get("original"), dict) else None)):
+        if isinstance(holder, dict):
+            blocks += [(f"{key}.{name}", block) for name, block in holder.items()]
+    for where, block in blocks:
+        facets = block.get("facets") if isinstance(block, dict) else None
+        if not isinstance(facets, list):
+            continue
+        try:
+            count_simplices([tuple(map(repr, f)) if isinstance(f, list) else ()
+                             for f in facets], MAX_SIMPLICES, lambda i: f"{where}, facet {i}")
+        except DataFileError as error:
+            return str(error)
+    return None
+
+
 def data_files(data: dict) -> list[str]:
     """The paths of data files a certificate's families name (``file`` families, at any
     depth): re-checking them needs the data folder from the user."""
@@ -226,6 +249,9 @@ def check(path: str | Path, sample: int | None = None, seed: int = 0,
         return CheckResult(str(path), False, str(error))
     name = data.get("claim", {}).get("name", "?") if isinstance(data.get("claim"), dict) else "?"
     result = CheckResult(str(path), False, "", str(data.get("kind", "")), name)
+    if (problem := oversized(data)):
+        result.reason = f"refused: {problem}"
+        return result
     if data.get("schema") != SCHEMA:
         result.reason = f"unknown schema {data.get('schema')!r} (expected {SCHEMA!r})"
         return result

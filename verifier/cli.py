@@ -295,7 +295,7 @@ def cmd_run(args, console: Console) -> int:
 def cmd_check(args, console: Console) -> int:
     from .certificates import check
 
-    from .certificates import CertificateError, _load, data_files
+    from .certificates import CertificateError, _load, data_files, oversized
 
     paths = args.certificates
     if not paths:
@@ -308,6 +308,8 @@ def cmd_check(args, console: Console) -> int:
             data = _load(Path(path))
         except CertificateError as error:
             raise UserError(str(error)) from None
+        if (problem := oversized(data)):
+            raise UserError(f"{path}: refused before re-checking: {problem}")
         named = data_files(data)
         if named and folder is None and data.get("kind") == "pass":
             raise UserError(f"{path}: its families read data files ({', '.join(named[:3])}); "
@@ -349,6 +351,11 @@ def cmd_search(args, console: Console) -> int:
         raise UserError("search: the files hold several claims; choose one with --claim NAME "
                         f"({', '.join(c.name for c in claims)})")
     claim = claims[0]
+    from .run.runner import OptionError, check_output_folder
+    try:
+        check_output_folder(args.certificates, "--certificates")
+    except OptionError as error:
+        raise UserError(str(error)) from None
     console.print(f"searching for a counterexample to [bold]{claim.name}[/bold] "
                   f"({args.seconds:g} s, seed {args.seed}) ...", highlight=False)
     found = search(claim, seconds=args.seconds, seed=args.seed, max_vertices=args.max_vertices,
@@ -375,12 +382,15 @@ def cmd_search(args, console: Console) -> int:
 
 
 def cmd_summary(args, console: Console) -> int:
-    from .run.store import Store
+    from .run.store import Store, StoreError
 
     if not Path(args.store).exists():
         raise UserError(f"{args.store}: no such store (run `verifier run` first)")
     start = time.perf_counter()
-    store = Store(args.store)
+    try:
+        store = Store(args.store)
+    except StoreError as error:
+        raise UserError(str(error)) from None
     try:
         run_id = args.run or store.latest_run()
         if run_id is None:
