@@ -12,12 +12,14 @@ from .certified import (Ball, Undecided, compare, eigenvalue_enclosures, entropy
 from .matrix import ExactError, Matrix
 from .morse import MorseReduction, reduce_chain_complex, reduce_face_table
 from .primes import is_prime
+from .lattice import hermite_rows, integer_kernel
 from .poly import Poly
 
 __all__ = [
     "Ball", "Undecided", "compare", "eigenvalue_enclosures", "entropy_ball", "zeros_in_box",
     "zeros_on_axis",
     "zeta_ball", "MorseReduction", "reduce_chain_complex", "reduce_face_table", "is_prime",
+    "hermite_rows", "integer_kernel",
     "Matrix", "Poly", "Verdict", "ExactError", "charpoly", "charpoly_is_reciprocal",
     "charpoly_of_square", "det", "inverse", "inverse_many", "invariant_factors", "is_inverse", "kernel_dim",
     "multiplicity", "rank", "rank_mod", "signature", "unit_ldl", "verified_inverse_batch",
