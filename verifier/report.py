@@ -263,7 +263,7 @@ def _parameter_text(spec: dict) -> str:
     """A family table's parameters as one line: ``max_vertices = 5, as = flag``."""
     parts = []
     for key, value in spec.items():
-        if key in ("family", "bind", "_base"):
+        if key.startswith("_") or key in ("family", "bind"):   # private: base folder, hashes
             continue
         if isinstance(value, dict) and "family" in value:
             inner = _parameter_text(value)
