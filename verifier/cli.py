@@ -7,6 +7,8 @@
     verifier report               a run's report: Markdown, one HTML page, LaTeX
     verifier functions            the functions of the claim language
     verifier families             the families claims are tested over
+    verifier discover ...         propose relations among invariants (relations FILE), or
+                                  hypotheses under which a claim holds (hypotheses FILE)
 
 A COMPLEX is a catalog name (``verifier show --list`` prints them) or a path to a facet
 file (text: one facet per line; ``.json``: a list of facets).  Exit codes: 0 success
@@ -494,6 +496,40 @@ def cmd_energy(args, console: Console) -> int:
     return 0
 
 
+def cmd_discover(args, console: Console) -> int:
+    """`verifier discover relations FILE` / `verifier discover hypotheses CLAIMFILE`."""
+    from .discover.values import DiscoveryError
+    from .discover import workflow
+    from .families import FamilyError, make_family
+    from .run.runner import OptionError
+    from .run.store import StoreError
+
+    try:
+        further = []
+        if args.test_further:
+            from .discover.files import parse_family_option
+            further = [parse_family_option(text, make_family)[0] for text in args.test_further]
+        if args.what == "relations":
+            report = workflow.relations_from_file(
+                args.path, out=args.out, store=args.store, degree=args.degree,
+                further=further, test_further=args.test or bool(further), workers=args.workers)
+            lines = workflow.relations_lines(report)
+            ok = all(o["ok"] for o in report.further_outcomes.values())
+        else:
+            report = workflow.hypotheses_for(
+                args.path, args.claim, store=args.store, out=args.out,
+                keep_where=args.keep_where, further=further, workers=args.workers)
+            lines = workflow.hypotheses_lines(report)
+            ok = True
+    except DiscoveryError as error:
+        raise UserError(str(error)) from None
+    except (OptionError, StoreError, FamilyError) as error:
+        raise UserError(str(error)) from None
+    for line in lines:
+        console.print(escape(line), highlight=False, soft_wrap=True)
+    return 0 if ok else 1
+
+
 def cmd_functions(args, console: Console) -> int:
     from .claims.functions import QUANTIFIERS, TABLE
     console.print("[bold]Functions of the claim language[/bold] (exact; sources beside each)\n")
@@ -631,6 +667,30 @@ def build_parser() -> argparse.ArgumentParser:
     explore.add_argument("--format", choices=["png", "svg"], default="png")
     explore.add_argument("--seed", type=_seed, default=0, help="seed of the random starts")
     explore.set_defaults(handler=cmd_energy)
+
+    find = commands.add_parser("discover", help="propose relations among invariants, or the "
+                               "hypotheses under which a failing claim holds")
+    find.add_argument("what", choices=["relations", "hypotheses"],
+                      help="relations: from a discovery file; hypotheses: for a claim file")
+    find.add_argument("path", metavar="FILE", help="discovery file (relations) or claim file "
+                      "(hypotheses)")
+    find.add_argument("--claim", default=None, help="hypotheses: the claim's name when the "
+                      "file holds several")
+    find.add_argument("--degree", type=_count(1, 2), default=None,
+                      help="relations: 1 (linear) or 2 (products of pairs too)")
+    find.add_argument("--test", action="store_true", help="relations: run the proposed "
+                      "claims on the file's [[discovery.further]] families")
+    find.add_argument("--test-further", action="append", metavar="FAMILY", default=None,
+                      help="run the proposals on this family too, a TOML inline table such as "
+                      "'{ family = \"all-complexes\", max_vertices = 6 }' (may be repeated)")
+    find.add_argument("--keep-where", action="store_true", help="hypotheses: keep the "
+                      "claim's own 'where' (by default a hypothesis replaces it)")
+    find.add_argument("--out", default="reports/discovered", metavar="DIR",
+                      help="folder for the proposed claim files (default reports/discovered)")
+    find.add_argument("--store", default="reports/verifier.sqlite", help="SQLite store")
+    find.add_argument("--workers", type=_count(1, 64), default=None,
+                      help="worker processes (default: 2 for large families)")
+    find.set_defaults(handler=cmd_discover)
 
     functions = commands.add_parser("functions", help="list the claim language's functions")
     functions.set_defaults(handler=cmd_functions)

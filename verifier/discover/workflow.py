@@ -80,6 +80,14 @@ def _fresh_folder(out: Path) -> None:
     out.mkdir(parents=True, exist_ok=True)
 
 
+def _check_paths(store: str, out: str) -> None:
+    """Refuse a store or output folder that cannot be used, before any work."""
+    from ..run.runner import check_output_folder
+    from ..run.store import check_store_path
+    check_store_path(store)
+    check_output_folder(out, "--out")
+
+
 def relations_from_file(path: str, out: str = "reports/discovered",
                         store: str = "reports/verifier.sqlite", degree: int | None = None,
                         further: list[dict] | None = None, test_further: bool = False,
@@ -87,6 +95,7 @@ def relations_from_file(path: str, out: str = "reports/discovered",
     """Discover the relations of a discovery file, write a claim per relation, and with
     ``test_further`` run them on the file's ``further`` families (plus ``further``)."""
     from ..families import make_family
+    _check_paths(store, out)
     found = load_discovery(path)
     further_tables = list(found.further) + list(further or [])
     for table in further or []:
@@ -141,7 +150,8 @@ def relations_lines(report: RelationsReport) -> list[str]:
     r = report.result
     lines = [f"{report.name}: {len(r.table.expressions)} expressions on {r.cases:,} cases "
              f"({_families_text(report.over)}), degree {r.degree}",
-             f"values {r.seconds_values:.1f} s ({r.table.workers} processes), relations "
+             f"values {r.seconds_values:.1f} s ({r.table.workers} "
+             f"process{'es' if r.table.workers > 1 else ''}), relations "
              f"{r.seconds_relations:.2f} s", ""]
     if r.relations:
         lines.append(f"relations (a basis of all integer relations; each checked on every "
@@ -211,6 +221,7 @@ def hypotheses_for(path: str, claim_name: str | None = None,
     from .hypotheses import predicate_table, separators
 
     started = time.monotonic()
+    _check_paths(store, out)
     try:
         claims = load_paths([path])
     except ClaimError as error:
