@@ -4,7 +4,7 @@ Importing ``verifier`` is light: ``Complex`` is loaded on first use, so that the
 independent re-checking backend can run in a process that never loads python-flint.
 """
 
-__all__ = ["Complex", "ComplexError", "__version__"]
+__all__ = ["Complex", "ComplexError", "discover", "__version__"]
 __version__ = "0.1.0"
 
 
@@ -12,4 +12,7 @@ def __getattr__(name):
     if name in ("Complex", "ComplexError"):
         from . import complex as _complex
         return getattr(_complex, name)
+    if name == "discover":        # the package verifier.discover, callable as a function
+        import importlib
+        return importlib.import_module(".discover", __name__)
     raise AttributeError(f"module 'verifier' has no attribute {name!r}")

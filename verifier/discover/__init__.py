@@ -82,3 +82,15 @@ def discover(over, expressions, degree: int = 1, workers: int | None = None) -> 
     items = [Expression(text, text) for text in expressions]
     table = value_table(families, items, workers=workers)
     return Discovery(find_relations(table, degree))
+
+
+class _CallablePackage(__import__("types").ModuleType):
+    """``verifier.discover`` is both this package and the function :func:`discover`:
+    once the package is imported, Python binds the name ``verifier.discover`` to it, so
+    calling the package calls the function (the signature other code relies on)."""
+
+    def __call__(self, over, expressions, degree: int = 1, workers: int | None = None):
+        return discover(over, expressions, degree, workers)
+
+
+__import__("sys").modules[__name__].__class__ = _CallablePackage

@@ -259,7 +259,7 @@ def find_relations(table: ValueTable, degree: int = 1, proposals=None) -> Relati
     full_columns = [None] + columns
     matrix = [[1] + row for row in rows]
     n = len(full_columns)
-    vectors = sparser((proposals or integer_kernel)(matrix, n))
+    vectors = proposals(matrix, n) if proposals else sparser(integer_kernel(matrix, n))
     keyed_columns = [Expression(CONSTANT, CONSTANT)] + columns
     relations, rejected = [], []
     for vector in vectors:
