@@ -36,6 +36,7 @@ from verifier.exact import Matrix, signature  # noqa: E402
 from verifier.exact import charpoly_is_reciprocal  # noqa: E402
 from verifier.families import catalog  # noqa: E402
 from bench.homology import BENCHMARKS as HOMOLOGY_BENCHMARKS  # noqa: E402
+from bench.discover import BENCHMARKS as DISCOVER_BENCHMARKS  # noqa: E402
 
 RESULTS = ROOT / "bench" / "results.json"
 
@@ -595,6 +596,7 @@ BENCHMARKS = {
     "scale-1e6": bench_scale_1e6,
 }
 BENCHMARKS.update(HOMOLOGY_BENCHMARKS)
+BENCHMARKS.update(DISCOVER_BENCHMARKS)
 
 
 def main(argv=None) -> int:

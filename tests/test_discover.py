@@ -342,3 +342,17 @@ def test_relations_command_writes_runnable_claims(tmp_path):
     from verifier.discover.record import load_all
     kept = load_all(tmp_path / "s.sqlite")
     assert kept[0]["kind"] == "relations" and len(kept[0]["relations"]) == 2
+
+
+def test_report_has_a_discoveries_section(tmp_path):
+    """Relations and hypotheses kept in the store appear in report.md and report.html."""
+    from verifier.report import write_report
+    store = str(tmp_path / "s.sqlite")
+    relations_from_file(str(ROOT / "discoveries" / "surfaces.toml"), out=str(tmp_path / "o"),
+                        store=store, test_further=True)
+    hypotheses_for(str(ROOT / "claims" / "hydrogen-2d-fails.toml"), store=store,
+                   out=str(tmp_path / "o"), test_further=True)
+    md, html = write_report(store, tmp_path / "rep", certificates_dir=tmp_path)[:2]
+    for text in (md.read_text(), html.read_text()):
+        assert "Discoveries" in text and "Relations: surfaces" in text
+        assert "exactly when dim(K) &lt;= 1" in text or "exactly when dim(K) <= 1" in text

@@ -907,8 +907,12 @@ def write_report(store_path, out_dir="reports", run_id: str | None = None,
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
     written = [out / "report.md", out / "report.html"]
-    written[0].write_text(_markdown(run, pictures), encoding="utf-8")
-    written[1].write_text(_html(run, pictures), encoding="utf-8")
+    from .discover.render import discoveries_html, discoveries_markdown  # own section
+    written[0].write_text(_markdown(run, pictures) + discoveries_markdown(store_path),
+                          encoding="utf-8")
+    written[1].write_text(_html(run, pictures).replace(
+        f'<p class="caution">{_h(CAUTION)}.</p>', discoveries_html(store_path)
+        + f'<p class="caution">{_h(CAUTION)}.</p>', 1), encoding="utf-8")
     for claim_pictures in pictures.values():
         for p in claim_pictures:
             if p.file and p.png:
