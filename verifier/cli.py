@@ -295,9 +295,7 @@ def cmd_run(args, console: Console) -> int:
 
 
 def cmd_check(args, console: Console) -> int:
-    from .certificates import check
-
-    from .certificates import CertificateError, _load, data_files, oversized
+    from .certificates import CertificateError, _load, check_all, data_files, oversized
 
     paths = args.certificates
     if not paths:
@@ -305,6 +303,14 @@ def cmd_check(args, console: Console) -> int:
     folder = args.data_folder
     if folder is not None and not os.path.isdir(folder):
         raise UserError(f"--data-folder {folder!r}: no such folder")
+    claims = None
+    if args.claims:                # the shared claim files: loaded first, as `run` loads them
+        from .claims.errors import ClaimError
+        from .claims.loader import load_paths
+        try:
+            claims = load_paths(args.claims)
+        except ClaimError as error:
+            raise UserError(str(error)) from None
     for path in paths:             # every file is readable before any is checked
         try:
             data = _load(Path(path))
@@ -313,16 +319,20 @@ def cmd_check(args, console: Console) -> int:
         if (problem := oversized(data)):
             raise UserError(f"{path}: refused before re-checking: {problem}")
         named = data_files(data)
-        if named and folder is None and data.get("kind") == "pass":
+        if named and folder is None:
             raise UserError(f"{path}: its families read data files ({', '.join(named[:3])}); "
                             "name the folder that holds them with --data-folder DIR (no path "
                             "a certificate names is opened)")
     everything = True
-    for path in paths:
-        outcome = check(path, sample=args.sample, seed=args.seed, data_folder=folder)
+    outcomes = check_all(paths, sample=args.sample, seed=args.seed, data_folder=folder,
+                         claims=claims)
+    for path, outcome in zip(paths, outcomes):
         mark = "[green]verified[/green]" if outcome.verified else "[red]NOT verified[/red]"
         console.print(f"{mark}  {escape(str(path))}  {outcome.kind} {escape(outcome.claim)}: "
                       f"{escape(outcome.reason)}", highlight=False, soft_wrap=True)
+        if outcome.verified or outcome.different_claim:
+            for line in outcome.details:
+                console.print(f"    {escape(line)}", highlight=False, soft_wrap=True)
         everything &= outcome.verified
     return 0 if everything else 1
 
@@ -625,6 +635,10 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--data-folder", metavar="DIR", default=None,
                        help="the folder holding the data files of `file` families, looked "
                             "up by name and checked against their recorded SHA-256")
+    check.add_argument("--claims", nargs="+", metavar="FILE", default=None,
+                       help="claim files (or folders) the certificates' claims must be found "
+                            "in, unchanged: a consistent rewrite is reported as a different "
+                            "claim")
     check.set_defaults(handler=cmd_check)
 
     hunt = commands.add_parser("search", help="hunt a counterexample with random generation")
