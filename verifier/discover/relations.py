@@ -74,6 +74,8 @@ def columns_of(table: ValueTable, degree: int) -> tuple[list[Expression], list[l
     if degree not in (1, 2):
         raise ValueError(f"degree must be 1 or 2, got {degree!r}")
     columns = list(table.expressions)
+    if degree == 1:
+        return columns, table.values
     rows = [list(row) for row in table.values]
     if degree == 2:
         m = len(table.expressions)
@@ -88,7 +90,7 @@ def columns_of(table: ValueTable, degree: int) -> tuple[list[Expression], list[l
 
 
 def check_relation(coefficients: dict, columns: list[Expression], rows: list[list],
-                   case_ids: list[str]) -> str | None:
+                   case_ids: list[str], dense=None) -> str | None:
     """The first case id on which a relation fails, or None when it holds on every case.
 
     Definition: the relation holds on a case when c_"1" + Σ c_e · value(e) == 0, in
@@ -107,10 +109,45 @@ def check_relation(coefficients: dict, columns: list[Expression], rows: list[lis
         raise KeyError(f"relation names an expression not in the table: {unknown[0]!r}")
     constant = coefficients.get(CONSTANT, 0)
     terms = [(position[k], c) for k, c in coefficients.items() if k != CONSTANT and c]
+    if dense is not None:
+        fast = _int64_check(constant, terms, dense, case_ids)
+        if fast is not False:
+            return fast
     for case_id, row in zip(case_ids, rows):
         if constant + sum(c * row[j] for j, c in terms) != 0:
             return case_id
     return None
+
+
+def dense_int64(rows: list[list]):
+    """(int64 array of the rows, column maxima of |value|) when every value is an int
+    below 2^62 in absolute value; None otherwise."""
+    import numpy as np
+    if not rows or not all(type(x) is int for row in rows for x in row):
+        return None
+    try:
+        array = np.array(rows, dtype=np.int64)
+    except OverflowError:
+        return None
+    maxima = [int(m) for m in np.abs(array).max(axis=0)]
+    return (array, maxima) if max(maxima) < 2 ** 62 else None
+
+
+def _int64_check(constant: int, terms: list, dense, case_ids: list[str]):
+    """The check in numpy int64 when it is provably exact: ``dense`` holds the rows
+    (column 0 the constant 1, the others the columns the terms index), and
+    Σ |c_j| · max |value_j| < 2^62, so no partial sum can overflow.  Returns the first
+    failing case id, None, or False when the bound does not hold."""
+    import numpy as np
+    array, maxima = dense
+    if sum(abs(c) * maxima[j] for j, c in terms) + abs(constant) >= 2 ** 62:
+        return False
+    vector = np.zeros(array.shape[1], dtype=np.int64)
+    vector[0] = constant
+    for j, c in terms:
+        vector[j] = c
+    bad = np.flatnonzero(array @ vector)
+    return case_ids[int(bad[0])] if len(bad) else None
 
 
 def _side(terms: list[tuple[int, str]]) -> str:
@@ -252,15 +289,23 @@ def find_relations(table: ValueTable, degree: int = 1, proposals=None) -> Relati
     Method: the exact kernel of the case × (1, e_1, ..., e_m) matrix over Q and an
     LLL-reduced basis of its integer points (:func:`verifier.exact.integer_kernel`,
     after [1], [2]), made sparser by unimodular steps (:func:`sparser`) so that each
-    relation names few expressions; then :func:`check_relation` on every case.
+    relation names few expressions; then :func:`check_relation` on every case.  A relation
+    depends only on a case's row of values, so the check runs once per distinct row
+    (every case has its row among them; a failure is reported at the first case that
+    has the failing row, which is the first failing case).
     """
     started = time.perf_counter()
     columns, rows = columns_of(table, degree)
     full_columns = [None] + columns
-    matrix = [[1] + row for row in rows]
+    count = len(rows)                           # each distinct row of values, first case
+    first = dict(zip(map(tuple, reversed(rows)), range(count - 1, -1, -1)))
+    order = sorted(first.items(), key=lambda item: item[1])
+    matrix = [[1, *row] for row, _ in order]
+    witnesses = [table.case_ids[i] for _, i in order]
     n = len(full_columns)
     vectors = proposals(matrix, n) if proposals else sparser(integer_kernel(matrix, n))
     keyed_columns = [Expression(CONSTANT, CONSTANT)] + columns
+    dense = dense_int64(matrix)
     relations, rejected = [], []
     for vector in vectors:
         vector = _normalise([int(x) for x in vector])
@@ -268,7 +313,7 @@ def find_relations(table: ValueTable, degree: int = 1, proposals=None) -> Relati
         if not coefficients:
             continue
         text = relation_text(vector, full_columns)
-        failing = check_relation(coefficients, keyed_columns, matrix, table.case_ids)
+        failing = check_relation(coefficients, keyed_columns, matrix, witnesses, dense)
         if failing is None:
             relations.append(Relation(coefficients, len(table.case_ids), text,
                                       statement_text(vector, full_columns)))
@@ -278,8 +323,8 @@ def find_relations(table: ValueTable, degree: int = 1, proposals=None) -> Relati
     relations.sort(key=lambda r: (sum(abs(c) for c in r.coefficients.values()),
                                   len(r.coefficients)))
     constants, ranges = [], []
-    for j, expression in enumerate(table.expressions):
-        column = table.column(j)
+    for j, expression in enumerate(table.expressions):     # over the distinct rows
+        column = [row[j + 1] for row in matrix]
         if not column:
             continue
         low, high = min(column), max(column)

@@ -25,18 +25,17 @@ __all__ = ["integer_kernel", "hermite_rows"]
 
 
 def _integer_rows(rows) -> list[list[int]]:
-    """Distinct rows, each multiplied by the lcm of its denominators (the kernel of a
-    matrix does not change when a row is scaled, repeated or dropped as a duplicate)."""
-    seen: set[tuple[int, ...]] = set()
-    out: list[list[int]] = []
-    for row in rows:
-        values = [Fraction(x) for x in row]
-        scale = lcm(*(x.denominator for x in values)) if values else 1
-        key = tuple(int(x * scale) for x in values)
-        if any(key) and key not in seen:
-            seen.add(key)
-            out.append(list(key))
-    return out
+    """Distinct nonzero rows, each multiplied by the lcm of its denominators (the kernel
+    of a matrix does not change when a row is scaled, repeated or dropped)."""
+    distinct = list(dict.fromkeys(tuple(row) for row in rows))
+    if not all(type(x) is int for row in distinct for x in row):
+        scaled = []
+        for row in distinct:
+            values = [Fraction(x) for x in row]
+            scale = lcm(*(x.denominator for x in values)) if values else 1
+            scaled.append(tuple(int(x * scale) for x in values))
+        distinct = list(dict.fromkeys(scaled))
+    return [list(row) for row in distinct if any(row)]
 
 
 def integer_kernel(rows, columns: int) -> list[list[int]]:
@@ -67,15 +66,19 @@ def integer_kernel(rows, columns: int) -> list[list[int]]:
     R x = 0 exactly.
     """
     n = int(columns)
-    integer = _integer_rows(rows)
     if n == 0:
         return []
-    if not integer:
+    distinct = [list(row) for row in dict.fromkeys(map(tuple, rows)) if any(row)]
+    try:                                            # integers: straight to python-flint
+        matrix = flint.fmpz_mat(distinct) if distinct else None
+    except TypeError:                               # fractions: scale each row first
+        distinct = _integer_rows(distinct)
+        matrix = flint.fmpz_mat(distinct) if distinct else None
+    if matrix is None:
         return [[int(i == j) for j in range(n)] for i in range(n)]
-    reduced, _denominator, _rank = flint.fmpz_mat(integer).rref()
-    echelon = [[int(x) for x in row] for row in reduced.tolist()]
-    echelon = [row for row in echelon if any(row)]
-    rank = len(echelon)
+    reduced, _denominator, rank = matrix.rref()
+    rank = int(rank)
+    echelon = [[int(reduced[i, j]) for j in range(n)] for i in range(rank)]
     if rank == n:
         return []
     height = max(abs(x) for row in echelon for x in row)
