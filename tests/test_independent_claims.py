@@ -135,8 +135,8 @@ FAILING = [
     ("connection(K) + boundary_matrix(K, 1)", "matrix +: shapes (9, 9) and (4, 4) differ"),
     ("connection(K) @ boundary_matrix(K, 2)", "matrix @: cannot multiply (9, 9) by (4, 1)"),
     ("boundary_matrix(K, 2) ** 2", "matrix power 2: only a square matrix has powers"),
-    ("union(K, star(K, (1,)))",
-     "union takes two complexes (disjoint union) or two sets of simplices"),
+    # union(K, star(K, (1,))) mixes a complex and a set: refused when it is parsed
+    # (tests/test_hardening_language.py), so no backend ever sees it
     ("boundary(K)", "boundary: the boundary is defined for pure complexes (all facets of one "
                     "dimension); this complex has facets of dimensions [1, 2]"),
     ("interior(K)", "interior: the boundary is defined for pure complexes (all facets of one "

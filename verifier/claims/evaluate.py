@@ -4,9 +4,14 @@
 Arithmetic is exact (``int``, ``Fraction``, exact matrices and polynomials).  Every
 evaluation runs under :class:`Limits`: exponent sizes, result sizes, matrix powers and
 orders, the number of steps, and a wall-clock deadline checked between steps; going
-past one raises :class:`~verifier.claims.errors.LimitExceeded` naming the limit.  (A
-single long library call cannot be interrupted from inside; the runner enforces the
-per-case time limit on its worker processes as well.)
+past one raises :class:`~verifier.claims.errors.LimitExceeded` naming the limit.  Sizes
+are predicted before anything is built (complexes from operations, matrix orders,
+polynomial degrees, bits of numbers), and in the main thread of a process an interval
+timer stops a long library call at the deadline (:func:`time_limit`); a call inside
+compiled code is stopped when it returns, and the runner's watchdog stops the worker
+process if it never does.  Any other failure of a computation becomes an
+:class:`~verifier.claims.errors.EvaluationError` naming the place (:func:`translate`):
+no exception of Python's own leaves :func:`evaluate` or :func:`evaluate_claim`.
 
 The functions called are looked up in a *table* (name -> implementation), by default
 the main backend's (:data:`verifier.claims.functions.FUNCTIONS`); the certificate
@@ -15,7 +20,10 @@ checker passes the independent backend's table instead.
 
 from __future__ import annotations
 
+import signal
+import threading
 import time
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from fractions import Fraction
 
@@ -24,7 +32,8 @@ from .errors import ClaimError, EvaluationError, LimitExceeded, Undecided
 from .expression import Node
 from .values import Indexed, describe_value
 
-__all__ = ["Limits", "Context", "evaluate", "Outcome", "evaluate_claim"]
+__all__ = ["Limits", "Context", "evaluate", "Outcome", "evaluate_claim", "time_limit",
+           "translate"]
 
 
 @dataclass(frozen=True)
@@ -36,6 +45,10 @@ class Limits:
     max_matrix_order: int = 20_000       # order of a matrix a function may build
     max_steps: int = 5_000_000           # nodes evaluated, generator items included
     seconds: float | None = 60.0         # wall clock for one case
+    max_poly_degree: int = 20_000        # degree of a polynomial built by * and **
+    max_simplices: int = 2_000_000       # simplices of a complex an operation may build
+    memory: int | None = None            # megabytes one case may add (the cap in force,
+                                         # set by the engine; named in 'memory' reasons)
 
 
 @dataclass
@@ -136,6 +149,8 @@ def _power(base, exponent, ctx: Context, node: Node):
         if not 0 <= exponent <= 64:
             raise LimitExceeded("polynomial powers are limited to exponents 0..64",
                                 "max_exponent", node.place())
+        degree, bits = _poly_size(poly)
+        _check_poly(degree * exponent, bits * exponent, ctx, node, "polynomial power")
         return poly ** exponent
     raise EvaluationError(f"cannot raise {describe_value(base)} to a power", node.place())
 
@@ -161,6 +176,7 @@ def _binop(op, a, b, ctx, node):
             raise EvaluationError("division by zero", node.place())
         return a % b if op == "%" else a // b
     if _is_number(a) and _is_number(b):
+        _check_bits(a, b, op, ctx, node)
         if op == "+":
             return a + b
         if op == "-":
@@ -196,8 +212,13 @@ def _binop(op, a, b, ctx, node):
         if op == "-":
             return pa - pb
         if op == "*":
+            if hasattr(pa, "coeffs") and hasattr(pb, "coeffs"):
+                (da, ba), (db, bb) = _poly_size(pa), _poly_size(pb)
+                _check_poly(da + db, ba + bb, ctx, node, "polynomial product")
             return pa * pb
         if op == "/" and _is_number(pb):
+            if pb == 0:
+                raise EvaluationError("division by zero", node.place())
             return pa * Fraction(1, 1) * (Fraction(1) / pb)
     raise EvaluationError(f"operator '{op}' does not apply to {_kind(a)} and {_kind(b)}",
                           node.place())
@@ -284,8 +305,112 @@ def _iterate(value, node):
 
 
 # ------------------------------------------------------------------- evaluate
+class _TimeUp(BaseException):
+    """Raised by the interval timer; a BaseException, so that no ``except Exception`` in
+    library code swallows it.  Turned into LimitExceeded where the timer was set."""
+
+
+_TIMER = {"depth": 0}
+
+
+@contextmanager
+def time_limit(deadline: float | None, seconds: float | None):
+    """Stop what runs inside at the monotonic ``deadline`` with LimitExceeded("seconds").
+
+    Uses an interval timer (SIGALRM) in the main thread of the process, restoring any
+    timer and handler that were there; elsewhere (worker threads) only the evaluator's
+    own checks between steps apply.  Nested uses keep the outer deadline.
+    """
+    usable = (deadline is not None and hasattr(signal, "setitimer")
+              and threading.current_thread() is threading.main_thread())
+    if not usable or _TIMER["depth"]:
+        if usable:
+            _TIMER["depth"] += 1
+        try:
+            yield
+        finally:
+            if usable:
+                _TIMER["depth"] -= 1
+        return
+    remaining = deadline - time.monotonic()
+    if remaining <= 0:
+        raise LimitExceeded(f"evaluation took longer than {seconds} s", "seconds")
+
+    def ring(signum, frame):
+        raise _TimeUp()
+
+    started = time.monotonic()
+    previous_handler = signal.signal(signal.SIGALRM, ring)
+    previous_timer = signal.setitimer(signal.ITIMER_REAL, remaining)
+    _TIMER["depth"] = 1
+    try:
+        yield
+    except _TimeUp:
+        raise LimitExceeded(f"evaluation took longer than {seconds} s", "seconds") from None
+    finally:
+        _TIMER["depth"] = 0
+        signal.setitimer(signal.ITIMER_REAL, 0)
+        signal.signal(signal.SIGALRM, previous_handler)
+        if previous_timer[0] > 0:    # someone else's timer: give it back what is left
+            left = previous_timer[0] - (time.monotonic() - started)
+            signal.setitimer(signal.ITIMER_REAL, max(left, 0.001), previous_timer[1])
+
+
+def _what(node: Node) -> str:
+    if node.kind == "call":
+        return node.function.name
+    if node.kind in ("binop", "unary"):
+        return f"operator '{node.value}'"
+    if node.kind == "index":
+        return "indexing"
+    if node.kind == "quant":
+        return node.value
+    if node.kind == "compare":
+        return "comparison"
+    return "the expression"
+
+
+def translate(error: BaseException, node: Node) -> EvaluationError:
+    """A failure of Python or a library while evaluating ``node``, in our own words."""
+    what = _what(node)
+    text = _message(error) if isinstance(error, Exception) else type(error).__name__
+    if isinstance(error, ZeroDivisionError):
+        return EvaluationError(f"{what}: division by zero", node.place())
+    if isinstance(error, ValueError) and "digits" in text and "limit" in text:
+        return LimitExceeded(f"{what}: a number has too many digits to be written out",
+                             "max_result_bits", node.place())
+    if isinstance(error, OverflowError):
+        return LimitExceeded(f"{what}: a number is too large for this computation",
+                             "max_result_bits", node.place())
+    if isinstance(error, IndexError):
+        return EvaluationError(f"{what}: an index is out of range", node.place())
+    if not text.startswith(f"{what}:"):
+        text = f"{what}: {text}"
+    if not isinstance(error, (ArithmeticError, ValueError, KeyError, TypeError)):
+        text += f" ({type(error).__name__})"
+    return EvaluationError(text, node.place())
+
+
 def evaluate(node: Node, env: dict, ctx: Context):
-    """The exact value of a checked node in the environment ``env`` (name -> value)."""
+    """The exact value of a checked node in the environment ``env`` (name -> value).
+
+    Raises only the claim language's errors (:class:`~verifier.claims.errors.ClaimError`
+    and its subclasses); the time limit holds also inside long library calls.
+    """
+    with time_limit(ctx.deadline, ctx.limits.seconds):
+        return _eval(node, env, ctx)
+
+
+def _eval(node: Node, env: dict, ctx: Context):
+    try:
+        return _dispatch(node, env, ctx)
+    except (ClaimError, RecursionError, MemoryError):
+        raise
+    except Exception as error:   # noqa: BLE001 - a library's failure, in our own words
+        raise translate(error, node) from None
+
+
+def _dispatch(node: Node, env: dict, ctx: Context):
     ctx.tick(node)
     kind = node.kind
     if kind == "const":
@@ -293,7 +418,7 @@ def evaluate(node: Node, env: dict, ctx: Context):
     if kind == "var":
         return env[node.value]
     if kind == "call":
-        args = [evaluate(a, env, ctx) for a in node.args]
+        args = [_eval(a, env, ctx) for a in node.args]
         implementation = ctx.table[node.function.name]
         _guard_size(node, args, ctx)
         try:
@@ -309,16 +434,13 @@ def evaluate(node: Node, env: dict, ctx: Context):
         except ClaimError as error:
             raise error.at(node.place()) if error.place is None else error
         except (ArithmeticError, ValueError, KeyError, TypeError) as error:
-            text = _message(error)
-            if not text.startswith(f"{node.function.name}:"):
-                text = f"{node.function.name}: {text}"
-            raise EvaluationError(text, node.place()) from None
+            raise translate(error, node) from None
     if kind == "binop":
-        a = evaluate(node.args[0], env, ctx)
-        b = evaluate(node.args[1], env, ctx)
+        a = _eval(node.args[0], env, ctx)
+        b = _eval(node.args[1], env, ctx)
         return _binop(node.value, a, b, ctx, node)
     if kind == "unary":
-        value = evaluate(node.args[0], env, ctx)
+        value = _eval(node.args[0], env, ctx)
         if node.value == "not":
             return not value
         if node.value == "+":
@@ -329,21 +451,21 @@ def evaluate(node: Node, env: dict, ctx: Context):
             return -value
         return -_unwrap_poly(value) if not _is_number(value) else -value
     if kind == "boolop":
-        test = lambda a: evaluate(a, env, ctx)  # noqa: E731
+        test = lambda a: _eval(a, env, ctx)  # noqa: E731
         return (_all_of if node.value == "and" else _any_of)(test, node.args)
     if kind == "compare":
-        values = [evaluate(node.args[0], env, ctx)]
+        values = [_eval(node.args[0], env, ctx)]
         links = []
         for op, right_node in zip(node.value, node.args[1:]):
-            values.append(evaluate(right_node, env, ctx))
+            values.append(_eval(right_node, env, ctx))
             links.append((op, values[-2], values[-1]))
         return _all_of(lambda link: _compare(link[0], link[1], link[2], node), links)
     if kind == "ifelse":
-        return evaluate(node.args[1] if evaluate(node.args[0], env, ctx) else node.args[2],
+        return _eval(node.args[1] if _eval(node.args[0], env, ctx) else node.args[2],
                         env, ctx)
     if kind == "index":
-        target = evaluate(node.args[0], env, ctx)
-        keys = [evaluate(k, env, ctx) for k in node.args[1:]]
+        target = _eval(node.args[0], env, ctx)
+        keys = [_eval(k, env, ctx) for k in node.args[1:]]
         try:
             if isinstance(target, Indexed):
                 return target.matrix[target.position(keys[0], 0), target.position(keys[1], 1)]
@@ -356,7 +478,7 @@ def evaluate(node: Node, env: dict, ctx: Context):
             raise EvaluationError(_message(error), node.place()) from None
         raise EvaluationError(f"cannot index {_kind(target)}", node.place())
     if kind == "list":
-        return tuple(evaluate(a, env, ctx) for a in node.args)
+        return tuple(_eval(a, env, ctx) for a in node.args)
     if kind == "quant":
         return _quantifier(node, env, ctx)
     raise AssertionError(f"unknown node kind {kind}")  # our bug, not the user's
@@ -367,14 +489,91 @@ def _message(error: Exception) -> str:
     return text
 
 
-def _guard_size(node: Node, args, ctx: Context):
+def _predicted_simplices(name: str, args) -> int | None:
+    """Simplices of the complex an operation would build, predicted before building it
+    (:mod:`verifier.sizes`), or None when the call builds no larger complex."""
     from ..complex import Complex
+    from .. import sizes
+    complexes = [a for a in args if isinstance(a, Complex)]
+    if name == "refine" and complexes:
+        times = args[1] if len(args) > 1 else 1
+        if isinstance(times, int) and not isinstance(times, bool) and 0 <= times <= 4:
+            return sum(sizes.refined_f_vector(tuple(complexes[0].f_vector), times))
+        return None
+    if len(complexes) == 2 and name in ("join", "product", "union"):
+        A, B = complexes
+        if name == "join":
+            return sizes.join_size(len(A.simplices), len(B.simplices))
+        if name == "product":
+            return sizes.product_size(tuple(A.f_vector), tuple(B.f_vector))
+        return len(A.simplices) + len(B.simplices)
+    if name == "cone" and complexes:
+        return 2 * len(complexes[0].simplices) + 1
+    if name == "suspension" and complexes:
+        return 3 * len(complexes[0].simplices) + 2
+    return None
+
+
+def _guard_size(node: Node, args, ctx: Context):
+    """Refuse, before it starts, a call whose result would pass a size limit."""
+    from ..complex import Complex
+    limits, name = ctx.limits, node.function.name
     for a in args:
-        if isinstance(a, Complex) and len(a.simplices) > ctx.limits.max_matrix_order \
+        if isinstance(a, Complex) and len(a.simplices) > limits.max_matrix_order \
                 and node.function.returns == "matrix":
-            raise LimitExceeded(f"{node.function.name}: {len(a.simplices)} simplices exceed the "
-                                f"matrix order limit {ctx.limits.max_matrix_order}",
+            raise LimitExceeded(f"{name}: {len(a.simplices)} simplices exceed the "
+                                f"matrix order limit {limits.max_matrix_order}",
                                 "max_matrix_order", node.place())
+    predicted = _predicted_simplices(name, args)
+    if predicted is not None and predicted > limits.max_simplices:
+        raise LimitExceeded(f"{name}: the result would have {predicted:,} simplices, more than "
+                            f"the limit of {limits.max_simplices:,}", "max_simplices",
+                            node.place())
+    if name == "identity" and _is_number(args[0]) and args[0] > limits.max_matrix_order:
+        raise LimitExceeded(f"identity: order {args[0]} exceeds the matrix order limit "
+                            f"{limits.max_matrix_order}", "max_matrix_order", node.place())
+    if name == "zeta" and all(_is_number(a) for a in args[1:]):
+        s, t = args[1], (args[2] if len(args) > 2 else 0)
+        if t == 0 and isinstance(s, int) and abs(s) > limits.max_matrix_power:
+            raise LimitExceeded(f"zeta: s = {s} is past the matrix power limit "
+                                f"{limits.max_matrix_power} (zeta(A, s) = tr A^-s at an "
+                                "integer s)", "max_matrix_power", node.place())
+        if max(abs(s), abs(t)) > limits.max_exponent:
+            raise LimitExceeded(f"zeta: |s| and |t| may be at most {limits.max_exponent}",
+                                "max_exponent", node.place())
+
+
+def _bits(x) -> int:
+    if isinstance(x, Fraction):
+        return x.numerator.bit_length() + x.denominator.bit_length()
+    return abs(x).bit_length()
+
+
+def _check_bits(a, b, op: str, ctx: Context, node: Node):
+    """Refuse a product or quotient (or a sum of fractions) whose result would pass the
+    bit limit, before computing it."""
+    if op in ("*", "/") or isinstance(a, Fraction) or isinstance(b, Fraction):
+        if _bits(a) + _bits(b) > ctx.limits.max_result_bits:
+            raise LimitExceeded(f"operator '{op}': the result would exceed "
+                                f"{ctx.limits.max_result_bits} bits", "max_result_bits",
+                                node.place())
+
+
+def _check_poly(degree: int, coefficient_bits: int, ctx: Context, node: Node, what: str):
+    limits = ctx.limits
+    if degree > limits.max_poly_degree:
+        raise LimitExceeded(f"{what}: the result would have degree {degree}, more than the "
+                            f"limit {limits.max_poly_degree}", "max_poly_degree", node.place())
+    if (degree + 1) * coefficient_bits > 64 * limits.max_result_bits:
+        raise LimitExceeded(f"{what}: the coefficients of the result would exceed "
+                            f"{64 * limits.max_result_bits} bits", "max_result_bits",
+                            node.place())
+
+
+def _poly_size(poly) -> tuple[int, int]:
+    """Degree and bits of the sum of the absolute values of the coefficients."""
+    coeffs = list(poly.coeffs)
+    return max(len(coeffs) - 1, 0), _bits(sum(abs(Fraction(c)) for c in coeffs)) + 1
 
 
 def _bindings(loops, env, ctx, index=0):
@@ -383,17 +582,17 @@ def _bindings(loops, env, ctx, index=0):
         yield env
         return
     variable, iterable, conditions = loops[index]
-    for item in _iterate(evaluate(iterable, env, ctx), iterable):
+    for item in _iterate(_eval(iterable, env, ctx), iterable):
         inner = dict(env)
         inner[variable] = item
-        if all(evaluate(c, inner, ctx) for c in conditions):
+        if all(_eval(c, inner, ctx) for c in conditions):
             yield from _bindings(loops, inner, ctx, index + 1)
 
 
 def _quantifier(node: Node, env: dict, ctx: Context):
     name = node.value
     if not node.loops:  # sum of a list or of a matrix
-        value = evaluate(node.args[0], env, ctx)
+        value = _eval(node.args[0], env, ctx)
         if isinstance(value, Indexed):
             return value.matrix.total()
         total = 0
@@ -408,7 +607,7 @@ def _quantifier(node: Node, env: dict, ctx: Context):
         pending = None
         for inner in _bindings(node.loops, env, ctx):
             try:
-                value = bool(evaluate(element, inner, ctx))
+                value = bool(_eval(element, inner, ctx))
             except Undecided as error:   # Kleene logic: a later item may still decide
                 pending = pending or error
                 continue
@@ -421,11 +620,11 @@ def _quantifier(node: Node, env: dict, ctx: Context):
     if name == "sum":
         total = 0
         for inner in _bindings(node.loops, env, ctx):
-            total += evaluate(element, inner, ctx)
+            total += _eval(element, inner, ctx)
         return _normal(total)
     count = 0
     for inner in _bindings(node.loops, env, ctx):
-        value = evaluate(element, inner, ctx)
+        value = _eval(element, inner, ctx)
         count += 1 if (value is True or (value is not False and value is not None)) else 0
     return count
 
@@ -466,11 +665,21 @@ def evaluate_claim(statement: Node, env: dict, ctx: Context | None = None) -> Ou
     """Evaluate a boolean statement, keeping the values of its two sides when it is a
     comparison, and the deciding binding of a top-level quantifier."""
     ctx = ctx or Context()
+    with time_limit(ctx.deadline, ctx.limits.seconds):
+        try:
+            return _evaluate_claim(statement, env, ctx)
+        except (ClaimError, RecursionError, MemoryError):
+            raise
+        except Exception as error:   # noqa: BLE001 - e.g. writing out a value
+            raise translate(error, statement) from None
+
+
+def _evaluate_claim(statement: Node, env: dict, ctx: Context) -> Outcome:
     ctx.witness = None
     sides: list[str] = []
     if statement.kind == "compare" and len(statement.args) == 2:
-        left = evaluate(statement.args[0], env, ctx)
-        right = evaluate(statement.args[1], env, ctx)
+        left = _eval(statement.args[0], env, ctx)
+        right = _eval(statement.args[1], env, ctx)
         sides = [describe_value(left), describe_value(right)]
         try:
             holds = _compare(statement.value[0], left, right, statement)
@@ -480,7 +689,7 @@ def evaluate_claim(statement: Node, env: dict, ctx: Context | None = None) -> Ou
         if not holds and isinstance(left, Indexed) and isinstance(right, Indexed):
             ctx.witness = _first_difference(left, right)
     else:
-        value = evaluate(statement, env, ctx)
+        value = _eval(statement, env, ctx)
         holds = bool(value)
         sides = [describe_value(value)]
     witness = None

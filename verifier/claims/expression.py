@@ -28,10 +28,10 @@ import warnings
 from dataclasses import dataclass, field
 
 from .errors import ExpressionError, Place
-from .functions import FUNCTIONS, QUANTIFIERS, REQUIRED, Function
-from .values import compatible, element_type
+from .functions import FUNCTIONS, QUANTIFIERS, REQUIRED, SAME, Function
+from .values import EMPTY, compatible, element_type, list_type, tuple_items, unify
 
-__all__ = ["Node", "parse", "MAX_LENGTH", "MAX_DEPTH"]
+__all__ = ["Node", "parse", "parse_condition", "MAX_LENGTH", "MAX_DEPTH"]
 
 MAX_LENGTH = 4000       # characters in one expression
 MAX_DEPTH = 40          # nesting depth of the expression tree
@@ -44,7 +44,7 @@ class Node:
     kind: str
     line: int
     column: int
-    type: str = "any"
+    type: str = "bool"
     value: object = None                 # const: the value; var: the name; op names
     args: list = field(default_factory=list)
     function: Function | None = None     # call
@@ -159,16 +159,27 @@ class _Builder:
             if op in ("<", "<=", ">", ">="):
                 self.expect(a, ("number", "ball"), f"'{op}'")
                 self.expect(b, ("number", "ball"), f"'{op}'")
-            if op in ("in", "not in") and element_type(b.type) is None:
-                raise ExpressionError(f"'{op}' needs a set, list or complex on its right, "
-                                      f"got {b.type}", b.place())
+            if op in ("in", "not in"):
+                item = element_type(b.type)
+                if item is None:
+                    raise ExpressionError(f"'{op}' needs a set, list or complex on its right, "
+                                          f"got {b.type}", b.place())
+                if unify(a.type, item) is None:
+                    raise ExpressionError(f"'{op}': the items of a {b.type} are {item}, but "
+                                          f"its left side is a {a.type}", a.place())
+            if op in ("==", "!=") and unify(a.type, b.type) is None:
+                raise ExpressionError(f"'{op}' compares values of one type, got {a.type} "
+                                      f"and {b.type}", b.place())
         return self.new("compare", node, type="bool", value=ops, args=operands)
 
     def build_IfExp(self, node, depth):
         test = self.build(node.test, depth)
         self.expect(test, ("bool",), "the condition of 'if'")
         a, b = self.build(node.body, depth), self.build(node.orelse, depth)
-        kind = a.type if a.type == b.type else "any"
+        kind = unify(a.type, b.type)
+        if kind is None:
+            raise self.fail(f"the two branches of 'if ... else' must have one type, got "
+                            f"{a.type} and {b.type}", node)
         return self.new("ifelse", node, type=kind, args=[test, a, b])
 
     def build_Subscript(self, node, depth):
@@ -181,22 +192,39 @@ class _Builder:
         if target.type == "matrix":
             if len(keys) != 2:
                 raise self.fail(f"a matrix takes two indices M[x, y], got {len(keys)}", node)
+            for k in keys:
+                self.expect(k, ("number", "simplex"), "a matrix index")
             kind = "number"
-        elif target.type.startswith("list") or target.type == "any":
+        elif target.type.startswith(("list[", "tuple[")):
             if len(keys) != 1:
-                raise self.fail("a list takes one index", node)
-            kind = element_type(target.type) or "any"
+                raise self.fail(f"a list takes one index v[i], got {len(keys)}", node)
+            self.expect(keys[0], ("number",), "a list index")
+            kind = self.item_type(target, keys[0], node)
         else:
             raise self.fail(f"a {target.type} cannot be indexed", node)
-        for k in keys:
-            self.expect(k, ("number", "simplex"), "an index")
         return self.new("index", node, type=kind, args=[target] + keys)
+
+    def item_type(self, target: Node, key: Node, node) -> str:
+        """The type of ``target[key]`` for a list: its item type, or for a list whose items
+        differ in type the type at the position a literal integer names."""
+        if target.type == EMPTY:
+            raise self.fail("an empty list cannot be indexed", node)
+        items = tuple_items(target.type)
+        position = _literal_integer(key)
+        if items is not None and position is not None:
+            if not -len(items) <= position < len(items):
+                raise ExpressionError(f"index {position} is outside 0..{len(items) - 1} for "
+                                      f"a list of {len(items)} items", key.place())
+            return items[position]
+        kind = element_type(target.type)
+        if kind is None:
+            raise ExpressionError(f"the items of a {target.type} differ in type: index it "
+                                  "by a literal integer", key.place())
+        return kind
 
     def build_Tuple(self, node, depth):
         items = [self.build(e, depth) for e in node.elts]
-        kinds = {i.type for i in items}
-        kind = f"list[{kinds.pop()}]" if len(kinds) == 1 else "list"
-        return self.new("list", node, type=kind, args=items)
+        return self.new("list", node, type=list_type([i.type for i in items]), args=items)
 
     build_List = build_Tuple
 
@@ -229,8 +257,15 @@ class _Builder:
                 raise ExpressionError(
                     f"{name}: argument '{param.name}' must be {' or '.join(param.types)}, "
                     f"got {arg.type}", arg.place())
-        return self.new("call", node, type=_static(function.returns), function=function,
-                        args=args)
+        kind = function.result_type(len(args))
+        if kind == SAME:
+            kind = _static(args[0].type)
+            for param, arg in zip(function.params[1:], args[1:]):
+                if arg.type != kind:
+                    raise ExpressionError(
+                        f"{name}: argument '{param.name}' must have the type of "
+                        f"'{function.params[0].name}' ({kind}), got {arg.type}", arg.place())
+        return self.new("call", node, type=_static(kind), function=function, args=args)
 
     def build_quantifier(self, name, node, depth):
         if len(node.args) != 1:
@@ -240,11 +275,14 @@ class _Builder:
         if not isinstance(arg, ast.GeneratorExp):
             if name == "sum":
                 inner = self.build(arg, depth)
-                if inner.type != "matrix" and not inner.type.startswith("list") \
-                        and inner.type != "any":
+                if inner.type == "matrix" or inner.type == EMPTY:
+                    return self.new("quant", node, type="number", value="sum", args=[inner])
+                item = element_type(inner.type) if inner.type.startswith(("list[", "tuple[")) \
+                    else None
+                if item not in ("number", "ball"):
                     raise ExpressionError(f"sum of a {inner.type}: give a generator, a list "
-                                          "or a matrix", inner.place())
-                return self.new("quant", node, type="number", value="sum", args=[inner])
+                                          "of numbers or a matrix", inner.place())
+                return self.new("quant", node, type=item, value="sum", args=[inner])
             raise self.fail(f"{name} needs a generator: {name}(... for x in ...)", node)
         loops = []
         self.scopes.append({})
@@ -255,8 +293,9 @@ class _Builder:
                 iterable = self.build(comp.iter, depth)
                 item = element_type(iterable.type)
                 if item is None:
-                    raise ExpressionError(f"cannot iterate over a {iterable.type}",
-                                          iterable.place())
+                    raise ExpressionError(f"cannot iterate over a {iterable.type}; iterate "
+                                          "over a complex, a set or a list whose items have "
+                                          "one type", iterable.place())
                 variable = comp.target.id
                 if variable in FUNCTIONS or variable in QUANTIFIERS:
                     raise self.fail(f"'{variable}' names a function; choose another variable",
@@ -287,8 +326,6 @@ class _Builder:
 
 def _binop_type(op, left: Node, right: Node, builder: _Builder, node) -> str:
     a, b = left.type, right.type
-    if "any" in (a, b):
-        return "any"
     if op == "**":
         builder.expect(right, ("number",), "an exponent")
         if a in ("number", "ball", "matrix", "poly"):
@@ -322,6 +359,16 @@ def _static(returns: str) -> str:
     return "ball" if returns == "number|ball" else returns
 
 
+def _literal_integer(node: Node) -> int | None:
+    """The value of an integer literal (possibly negated), or None."""
+    if node.kind == "const" and node.type == "number":
+        return node.value
+    if node.kind == "unary" and node.value in ("-", "+") and node.args[0].kind == "const" \
+            and node.args[0].type == "number":
+        return -node.args[0].value if node.value == "-" else node.args[0].value
+    return None
+
+
 def _refusal(node) -> str:
     if isinstance(node, ast.Attribute):
         return "attribute access is not allowed"
@@ -338,11 +385,50 @@ def _refusal(node) -> str:
     return f"{type(node).__name__} is not allowed in a claim expression"
 
 
+def _position(text: str, index: int) -> Place:
+    line = text.count("\n", 0, index) + 1
+    return Place(None, line, index - (text.rfind("\n", 0, index) + 1) + 1)
+
+
+def _check_characters(text: str) -> None:
+    """Refuse what Python's parser would read differently from what a reader sees: a
+    comment (``#`` would silently drop the rest of the line) and any character outside
+    ASCII (Python folds look-alikes such as full-width letters or the Kelvin sign into
+    ASCII names)."""
+    for index, char in enumerate(text):
+        if char == "#":
+            raise ExpressionError("'#' is not allowed: an expression has no comments",
+                                  _position(text, index))
+        if ord(char) > 127:
+            raise ExpressionError(f"character {char!r} (U+{ord(char):04X}) is not allowed: "
+                                  "names, numbers and operators are ASCII only",
+                                  _position(text, index))
+
+
 def _unshift(tree):
     """Undo the opening parenthesis added before parsing: columns on line 1 move back."""
     for node in ast.walk(tree):
         if getattr(node, "lineno", None) == 1 and hasattr(node, "col_offset"):
             node.col_offset = max(node.col_offset - 1, 0)
+
+
+def parse_condition(text: str, variables: dict[str, str], where: Place | None = None,
+                    what: str = "the statement") -> Node:
+    """Parse an expression that must be true or false (a statement, a ``where``).
+
+    >>> parse_condition("betti(K)", {"K": "complex"})
+    Traceback (most recent call last):
+    ...
+    verifier.claims.errors.ExpressionError: <expression>:1:1: the statement must be true or false, but it gives a list[number]
+    """
+    node = parse(text, variables, where)
+    if node.type != "bool":
+        error = ExpressionError(f"{what} must be true or false, but it gives a {node.type}",
+                                Place(None, 1, 1))
+        if where is not None:
+            error.place = Place(where.file, where.line, where.column)
+        raise error
+    return node
 
 
 def parse(text: str, variables: dict[str, str], where: Place | None = None) -> Node:
@@ -368,6 +454,7 @@ def parse(text: str, variables: dict[str, str], where: Place | None = None) -> N
                                   Place(None, 1, 1))
         if "\x00" in text:
             raise ExpressionError("expression contains a NUL character", Place(None, 1, 1))
+        _check_characters(text)
         try:  # parenthesised, so that a statement may span several lines
             with warnings.catch_warnings():
                 warnings.simplefilter("ignore")   # Python's own warnings about odd literals

@@ -16,7 +16,7 @@ from __future__ import annotations
 import importlib
 from dataclasses import dataclass
 
-__all__ = ["Param", "Function", "TABLE", "FUNCTIONS", "QUANTIFIERS", "REQUIRED"]
+__all__ = ["Param", "Function", "TABLE", "FUNCTIONS", "QUANTIFIERS", "REQUIRED", "SAME"]
 
 REQUIRED = object()
 
@@ -40,6 +40,13 @@ class Function:
     combinatorial: bool = False  # no exact linear algebra inside
     evidence: str = "exact"      # the weakest evidence its results can carry (SPEC §6);
                                  # "certified" results are enclosures or certified counts
+    returns_by_count: tuple = ()  # (number of arguments, result type) where the result
+                                  # type depends on how many arguments are given
+
+    def result_type(self, count: int) -> str:
+        """The result type of a call with ``count`` arguments (``same``: the type of the
+        first argument, see :data:`SAME`)."""
+        return dict(self.returns_by_count).get(count, self.returns)
 
     @property
     def summary(self) -> str:
@@ -58,7 +65,10 @@ class Function:
             if p.default is not REQUIRED:
                 text += f" = {p.default!r}"
             parts.append(text)
-        return f"{self.name}({', '.join(parts)}) -> {self.returns}"
+        result = self.returns
+        for count, kind in self.returns_by_count:
+            result += f" ({kind} with {count} arguments)"
+        return f"{self.name}({', '.join(parts)}) -> {result}"
 
 
 def P(name, *types, default=REQUIRED) -> Param:
@@ -66,6 +76,7 @@ def P(name, *types, default=REQUIRED) -> Param:
 
 
 C, M, N, S = "complex", "matrix", "number", "simplex"
+SAME = "same"   # result of the type of the first argument; every argument must have it
 CB = {"combinatorial": True}
 
 TABLE: list[Function] = [
@@ -102,7 +113,7 @@ TABLE: list[Function] = [
              "The identity matrix of order n, or indexed by the simplices of a complex."),
     # linear algebra
     Function("transpose", (P("A", M),), M, None, "definition", "The transpose of a matrix."),
-    Function("abs", (P("x", N, M, "ball"),), "any", None, "definition",
+    Function("abs", (P("x", N, M, "ball"),), SAME, None, "definition",
              "Absolute value of a number (the modulus of a certified complex number), or of "
              "every entry of a matrix."),
     Function("det", (P("A", M),), N, "invariants.det", "exact elimination"),
@@ -137,7 +148,7 @@ TABLE: list[Function] = [
     Function("im", (P("z", N, "ball"),), "number|ball", None, "definition",
              "The imaginary part of a number or of a certified complex number."),
     # free energy (O. Knill, arXiv:2105.07553)
-    Function("free_energy", (P("V", C, M), P("p", "list"), P("T", N)), "number|ball",
+    Function("free_energy", (P("V", C, M), P("p", "list[number]"), P("T", N)), "number|ball",
              None, "O. Knill, arXiv:2105.07553 (2021)",
              "F_T(p) = sum V(x,y) p(x) p(y) - T S(p), S(p) = -sum p log p; V a matrix or the "
              "Green function of a complex. Exact when S(p) = 0 or T = 0, else certified.",
@@ -147,10 +158,12 @@ TABLE: list[Function] = [
              "Critical points of F_T on the probability simplex, lowest F first (floating "
              "point, rounded to 6 decimals: evidence float).", evidence="float"),
     # topology
-    Function("betti", (P("K", C), P("k", N, default=None), P("p", N, default=0)), "any",
-             "invariants.betti", "J. R. Munkres (1984) §5, §7, §11; Morse reduction: "
-             "R. Forman, Adv. Math. 134 (1998)"),
-    Function("homology", (P("K", C),), "list[list]", "invariants.homology",
+    Function("betti", (P("K", C), P("k", N, default=None), P("p", N, default=0)),
+             "list[number]", "invariants.betti", "J. R. Munkres (1984) §5, §7, §11; Morse "
+             "reduction: R. Forman, Adv. Math. 134 (1998)",
+             returns_by_count=((2, N), (3, N))),
+    Function("homology", (P("K", C),), "list[tuple[number,list[number]]]",
+             "invariants.homology",
              "J. R. Munkres (1984) §11; Morse reduction: R. Forman, Adv. Math. 134 (1998); "
              "M. Mrozek, B. Batko, Discrete Comput. Geom. 42 (2009)"),
     Function("torsion", (P("K", C), P("k", N)), "list[number]", "invariants.torsion",
@@ -182,7 +195,7 @@ TABLE: list[Function] = [
     Function("product", (P("A", C), P("B", C)), C, "operations.product",
              "order complex of the product of face posets", **CB),
     Function("skeleton", (P("K", C), P("k", N)), C, "operations.skeleton", "definition", **CB),
-    Function("union", (P("A", C, "set"), P("B", C, "set")), "any", None, "definition",
+    Function("union", (P("A", C, "set"), P("B", C, "set")), SAME, None, "definition",
              "Disjoint union of two complexes, or union of two sets of simplices.", **CB),
 ]
 

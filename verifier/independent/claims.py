@@ -49,7 +49,7 @@ from itertools import combinations, permutations
 
 from ..claims.errors import ClaimError, EvaluationError, LimitExceeded, Undecided
 from ..claims.evaluate import Context, Limits, evaluate, evaluate_claim
-from ..claims.expression import parse
+from ..claims.expression import parse, parse_condition
 from ..claims.enclosure import (Count, Enclosure, enclosure_list, free_energy_value,
                                 imaginary_part, real_part,
                                 probability_vector, rounded_points, zeta_value)
@@ -1287,8 +1287,9 @@ def evaluate_claim_independently(statement: str, variables: dict, where: str | N
     (independent re-checking).
     """
     types = {name: "complex" for name in variables}
-    node = parse(statement, types)
-    condition = parse(where, types) if where is not None else None
+    node = parse_condition(statement, types)
+    condition = (parse_condition(where, types, what="'where'") if where is not None
+                 else None)
     env = {name: Complex.from_facets([[_label(v) for v in facet] for facet in facets])
            for name, facets in variables.items()}
     limits = limits or Limits()
@@ -1337,6 +1338,9 @@ def run_task(task: dict) -> dict:
         return _problem("error", error.message)
     except RecursionError:
         return _problem("limit", "max_depth: recursion too deep")
+    except MemoryError:
+        return _problem("limit", "memory: the case needed more memory than the re-check "
+                                 "process may use")
 
 
 # ------------------------------------------------------------------- client
