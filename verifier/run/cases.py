@@ -19,7 +19,7 @@ from dataclasses import asdict
 from functools import lru_cache
 
 from ..claims.errors import ClaimError, LimitExceeded, Undecided
-from ..claims.evaluate import Context, Limits, evaluate, evaluate_claim
+from ..claims.evaluate import Context, Limits, evaluate, evaluate_claim, time_limit
 from ..claims.loader import Claim, load_text
 
 __all__ = ["case_parts", "plan", "evaluate_case", "run_batch", "EVIDENCE_ORDER", "join_id",
@@ -91,25 +91,52 @@ def evaluate_case(claim: Claim, case_id: str, limits: Limits) -> dict:
     """Evaluate one case: build its complexes, check ``where``, evaluate the statement."""
     start = time.perf_counter()
     record = {"claim": claim.name, "case_id": case_id, "family": family_label(claim, case_id)}
+    deadline = time.monotonic() + limits.seconds if limits.seconds is not None else None
     try:
-        env = complexes_of(claim, case_id)
-        record["complex_hash"] = ",".join(env[v].content_hash for v in claim.variables)
+        with time_limit(deadline, limits.seconds):
+            env = complexes_of(claim, case_id)
+            record["complex_hash"] = ",".join(env[v].content_hash for v in claim.variables)
+    except LimitExceeded as error:
+        record.update(complex_hash="", outcome="limit",
+                      message=f"{error.limit}: building the case: {error.message}")
+        record["seconds"] = time.perf_counter() - start
+        return record
+    except MemoryError:
+        record.update(complex_hash="", outcome="limit",
+                      message=f"{memory_reason(limits)} (building the case)")
+        record["seconds"] = time.perf_counter() - start
+        return record
     except Exception as error:  # a family that cannot build its case: recorded, not fatal
         record.update(complex_hash="", outcome="error", message=f"building the case: {error}")
         record["seconds"] = time.perf_counter() - start
         return record
-    record.update(_judge(claim, env, limits))
+    record.update(_judge(claim, env, limits, deadline))
     record["seconds"] = time.perf_counter() - start
     return record
 
 
-def _judge(claim: Claim, env: dict, limits: Limits) -> dict:
-    """Outcome of the claim on one environment (no timing, no ids)."""
+def memory_reason(limits: Limits) -> str:
+    """The recorded reason of a case that ran out of memory, naming the cap in force."""
+    if limits.memory:
+        return (f"memory: the case needed more than the {limits.memory} MB one case may use "
+                "(--case-memory)")
+    return "memory: the case needed more memory than this process may use"
+
+
+def _judge(claim: Claim, env: dict, limits: Limits, deadline: float | None = None) -> dict:
+    """Outcome of the claim on one environment (no timing, no ids).  The ``where`` and
+    the statement share one deadline (by default ``limits.seconds`` from now)."""
     context = Context(limits)
+    if deadline is not None:
+        context.deadline = deadline
     try:
-        if claim.where is not None and not evaluate(claim.where, env, Context(limits)):
-            return {"outcome": "outside"}
-        outcome = evaluate_claim(claim.statement, env, context)
+        with time_limit(context.deadline, limits.seconds):
+            if claim.where is not None:
+                condition = Context(limits)
+                condition.deadline = context.deadline
+                if not evaluate(claim.where, env, condition):
+                    return {"outcome": "outside"}
+            outcome = evaluate_claim(claim.statement, env, context)
     except Undecided as error:     # a certified comparison the precision ladder cannot settle
         return {"outcome": "undecided", "evidence": "certified", "message": error.message,
                 "sides": getattr(error, "sides", []), "certified": context.certified}
@@ -120,8 +147,10 @@ def _judge(claim: Claim, env: dict, limits: Limits) -> dict:
     except RecursionError:
         return {"outcome": "limit", "message": "max_depth: recursion too deep"}
     except MemoryError:
-        return {"outcome": "limit", "message": "memory: the case needed more memory than its "
-                                               "worker may use (--case-memory)"}
+        return {"outcome": "limit", "message": memory_reason(limits)}
+    except Exception as error:   # noqa: BLE001 - our own bug; recorded with this case only
+        return {"outcome": "error", "message": f"evaluation failed ({type(error).__name__}): "
+                                               f"{error}"}
     result = {"outcome": "holds" if outcome.holds else "fails", "evidence": outcome.evidence,
               "sides": outcome.sides, "witness": outcome.witness,
               "certified": outcome.certified}
@@ -157,7 +186,21 @@ def run_batch(sources: tuple[tuple[str, str], ...], claim_name: str, case_ids: l
     """Evaluate a batch of cases of one claim; plain data in, plain records out."""
     claim = _claims(tuple(sources))[claim_name]
     bounds = Limits(**limits)
-    return [evaluate_case(claim, case_id, bounds) for case_id in case_ids]
+    return [_isolated(claim, case_id, bounds) for case_id in case_ids]
+
+
+def _isolated(claim: Claim, case_id: str, limits: Limits) -> dict:
+    """One case of a batch; whatever happens to it stays with it (never the batch)."""
+    try:
+        return evaluate_case(claim, case_id, limits)
+    except MemoryError:
+        outcome, message = "limit", memory_reason(limits)
+    except RecursionError:
+        outcome, message = "limit", "max_depth: recursion too deep"
+    except Exception as error:   # noqa: BLE001 - our own bug; recorded with this case only
+        outcome, message = "error", f"evaluation failed ({type(error).__name__}): {error}"
+    return {"claim": claim.name, "case_id": case_id, "family": family_label(claim, case_id),
+            "complex_hash": "", "outcome": outcome, "message": message, "seconds": 0.0}
 
 
 def limits_dict(limits: Limits) -> dict:

@@ -157,7 +157,9 @@ class ProcessEngine:
                     else:
                         outcome = "limit" if late else "error"
                         reason = ("seconds: the case ran past its time limit" if late
-                                  else "the worker process died while evaluating the case")
+                                  else "the worker process died while evaluating the case"
+                                  + (f" (out of memory? one case may use {self.memory} MB)"
+                                     if self.memory else ""))
                         yield batch, _failed(batch, outcome, reason)
         finally:
             for w in workers:
@@ -211,6 +213,7 @@ class DaskEngine:
             self.client = Client(self.cluster)
         self.workers = max(1, len(self.client.scheduler_info()["workers"]))
         self.slack = slack
+        self.memory = memory
 
     def map(self, function, batches):
         from dask.distributed import wait
@@ -237,7 +240,9 @@ class DaskEngine:
                             pending.extendleft(_split(batch))
                             continue
                         records = _failed(batch, "limit", "memory: workers kept dying on this "
-                                          "case (out of memory or crashed)")
+                                          "case (out of memory or crashed"
+                                          + (f"; one case may use {self.memory} MB)"
+                                             if self.memory else ")"))
                     else:
                         records = _failed(batch, "error", f"worker raised: {error}")
                 yield batch, records

@@ -32,7 +32,7 @@ from .store import Store, StoreError, check_store_path, verdict_of
 
 __all__ = ["run", "RunOptions", "ClaimResult", "RunResult", "digest_of", "ENGINES",
            "OptionError", "check_options", "check_output_folder", "max_workers",
-           "MAX_CASE_SECONDS"]
+           "MAX_CASE_SECONDS", "default_case_memory", "CLIENT_MARGIN"]
 
 ENGINES = {"processes": ProcessEngine, "inline": InlineEngine, "dask": DaskEngine}
 
@@ -56,6 +56,65 @@ def _physical_megabytes() -> int | None:
         return os.sysconf("SC_PAGE_SIZE") * os.sysconf("SC_PHYS_PAGES") // 2**20
     except (ValueError, OSError, AttributeError):
         return None
+
+
+MEMORY_SHARE = 0.75     # of the machine's memory, shared by the workers and the client
+MIN_CASE_MEMORY = 256   # megabytes: no default cap below this
+CLIENT_MARGIN = 10.0    # seconds the client may take past a case's time limit (start-up
+                        # and clean-up of the process that does the work)
+
+
+def default_case_memory(workers: int) -> int | None:
+    """The memory cap of one case when --case-memory is not given, in megabytes: three
+    quarters of the machine's memory shared by the workers and the client (which shrinks
+    counterexamples under the same cap), at least 256 MB; None if the machine does not
+    say how much memory it has."""
+    memory = _physical_megabytes()
+    if memory is None:
+        return None
+    return max(MIN_CASE_MEMORY, int(memory * MEMORY_SHARE) // (max(1, workers) + 1))
+
+
+def _in_child(function, args: tuple, seconds: float, memory: int | None):
+    """``function(*args)`` in a forked process under the case limits: its memory capped
+    like a worker's, killed after ``seconds``.  Returns ("ok", value), ("limit", reason)
+    or ("error", reason).  Keeps the client within the limits whatever the input."""
+    import multiprocessing as mp
+    from .engines import _limit_memory
+    if "fork" not in mp.get_all_start_methods():   # no fork: in this process, timer only
+        try:
+            return "ok", function(*args)
+        except Exception as error:  # noqa: BLE001 - reported with the case
+            return "error", f"{type(error).__name__}: {error}"
+    context = mp.get_context("fork")
+    receive, send = context.Pipe(duplex=False)
+
+    def child():
+        try:
+            _limit_memory(memory)
+            send.send(("ok", function(*args)))
+        except MemoryError:
+            send.send(("limit", f"memory: more than the {memory} MB one case may use"))
+        except BaseException as error:  # noqa: BLE001 - reported to the parent
+            send.send(("error", f"{type(error).__name__}: {error}"))
+
+    process = context.Process(target=child, daemon=True)
+    process.start()
+    send.close()
+    try:
+        if receive.poll(seconds):
+            try:
+                return receive.recv()
+            except EOFError:
+                pass
+            process.join(5)
+            return "error", "the process died (out of memory or crashed)"
+        return "limit", f"seconds: it took longer than {seconds:.0f} s"
+    finally:
+        if process.is_alive():
+            process.kill()
+        process.join(5)
+        receive.close()
 
 
 def _whole(value) -> bool:
@@ -216,17 +275,26 @@ def _batches(files, claim: Claim, ids, size: int, limits: dict, case_seconds: fl
         yield Batch((files, claim.name, chunk, limits), chunk, budget(len(chunk)))
 
 
-def _complete(claim: Claim, record: dict) -> dict:
-    """Fill in what an engine could not (a case whose worker was killed or died)."""
+def _hash_of_case(claim: Claim, case_id: str) -> str:
+    env = complexes_of(claim, case_id)
+    return ",".join(env[v].content_hash for v in claim.variables)
+
+
+def _complete(claim: Claim, record: dict, limits: Limits | None = None) -> dict:
+    """Fill in what an engine could not (a case whose worker was killed or died).  The
+    case is rebuilt and hashed in a child process under the case limits, never in the
+    client itself."""
     record.setdefault("claim", claim.name)
     record["family"] = record.get("family") or family_label(claim, record["case_id"])
-    if not record.get("complex_hash"):
-        try:
-            env = complexes_of(claim, record["case_id"])
-            record["complex_hash"] = ",".join(env[v].content_hash for v in claim.variables)
-        except Exception as error:  # noqa: BLE001 - recorded with the case
+    if not record.get("complex_hash") and record.get("_engine_failure"):
+        limits = limits or Limits()
+        status, value = _in_child(_hash_of_case, (claim, record["case_id"]),
+                                  (limits.seconds or 60.0) + CLIENT_MARGIN, limits.memory)
+        if status == "ok":
+            record["complex_hash"] = value
+        else:
             record["complex_hash"] = "unbuildable"
-            record["message"] = (record.get("message") or "") + f"; building: {error}"
+            record["message"] = (record.get("message") or "") + f"; building: {value}"
     record.pop("_engine_failure", None)
     return record
 
@@ -273,10 +341,11 @@ def _run(paths, options: RunOptions, progress) -> RunResult:
         resumed = store.open_run(run_id, request, options.engine)
         _claims_cache(files)   # loaded once here; forked workers inherit it
         engine_class = ENGINES[options.engine]
+        memory = case_memory(options)
         if options.engine == "dask":
-            engine = engine_class(options.workers, options.scheduler, memory=options.case_memory)
+            engine = engine_class(options.workers, options.scheduler, memory=memory)
         elif options.engine == "processes":
-            engine = engine_class(options.workers, memory=options.case_memory)
+            engine = engine_class(options.workers, memory=memory)
         else:
             engine = engine_class(options.workers)
         try:
@@ -291,6 +360,20 @@ def _run(paths, options: RunOptions, progress) -> RunResult:
         store.close()
 
 
+def case_memory(options: RunOptions) -> int | None:
+    """The memory cap of one case in force for a run: --case-memory, or the default for
+    the number of workers (:func:`default_case_memory`)."""
+    if options.case_memory is not None:
+        return options.case_memory
+    workers = options.workers or os.cpu_count() or 1
+    return default_case_memory(workers if options.engine != "inline" else 1)
+
+
+def _limits(options: RunOptions, workers: int) -> Limits:
+    """The limits of every evaluation of a run, in workers and in the client alike."""
+    return Limits(seconds=options.case_timeout, memory=case_memory(options))
+
+
 def plan_ids(files: tuple[tuple[str, str], ...], claim_name: str,
              max_cases: int | None) -> list[str]:
     """Every case id of a claim, in order.  Engines that can run it remotely do
@@ -300,7 +383,8 @@ def plan_ids(files: tuple[tuple[str, str], ...], claim_name: str,
 
 def _run_claim(claim: Claim, files, run_id: str, store: Store, engine, options: RunOptions,
                progress) -> ClaimResult:
-    limits = limits_dict(Limits(seconds=options.case_timeout))
+    bounds = _limits(options, engine.workers)
+    limits = limits_dict(bounds)
     planner = getattr(engine, "plan", None)
     ids = (planner(plan_ids, files, claim.name, options.max_cases) if planner
            else plan_ids(files, claim.name, options.max_cases))
@@ -311,7 +395,7 @@ def _run_claim(claim: Claim, files, run_id: str, store: Store, engine, options: 
         progress.start(claim, len(ids), len(ids) - len(todo))
     for _batch, records in engine.map(
             run_batch, _batches(files, claim, todo, size, limits, options.case_timeout)):
-        store.add_cases(run_id, [_complete(claim, r) for r in records])
+        store.add_cases(run_id, [_complete(claim, r, bounds) for r in records])
         if progress:
             progress.advance(len(records))
     if progress:
@@ -341,18 +425,18 @@ def _summarise(store: Store, run_id: str, claim: Claim, options: RunOptions) -> 
                        store.certified_values(run_id, claim.name))
 
 
-def _shrink_first(store: Store, run_id: str, claim: Claim, options: RunOptions) -> dict:
-    """Shrink the first failing case (in case-id order) and store the result."""
-    first = store.failing_cases(run_id, claim.name, limit=1)[0]
-    env = complexes_of(claim, first["case_id"])
-    limits = Limits(seconds=options.case_timeout)
-    shrunk = shrink(claim, env, limits, max_seconds=options.shrink_seconds)
+def _facets_of_case(claim: Claim, case_id: str) -> dict:
+    env = complexes_of(claim, case_id)
+    return {v: env[v].facet_labels() for v in claim.variables}
+
+
+def _shrink_record(claim: Claim, case_id: str, limits: Limits, seconds: float) -> dict:
+    """Shrink the case and describe the result (runs in a child process)."""
+    env = complexes_of(claim, case_id)
+    shrunk = shrink(claim, env, limits, max_seconds=seconds)
     final = evaluate_case_env(claim, shrunk.env, limits)
     record = {
-        "case_id": first["case_id"],
-        "family": first["family"],
         "original": {v: env[v].facet_labels() for v in claim.variables},
-        "original_sides": first["sides"],
         "complexes": {v: shrunk.env[v].facet_labels() for v in claim.variables},
         "sides": final["sides"],
         "witness": final["witness"],
@@ -362,6 +446,36 @@ def _shrink_first(store: Store, run_id: str, claim: Claim, options: RunOptions) 
         "evaluations": shrunk.evaluations,
         "minimal": shrunk.complete,
     }
+    if shrunk.stopped:
+        record["stopped"] = shrunk.stopped
+    return record
+
+
+def _shrink_first(store: Store, run_id: str, claim: Claim, options: RunOptions) -> dict:
+    """Shrink the first failing case (in case-id order) and store the result.  The work
+    runs in a child process under the case limits (memory cap, time limit per
+    evaluation, --shrink-seconds in all), so the client never runs unguarded work; if
+    the child cannot finish, the original case is kept, marked not minimal."""
+    first = store.failing_cases(run_id, claim.name, limit=1)[0]
+    limits = _limits(options, 1)
+    seconds = options.shrink_seconds + options.case_timeout + CLIENT_MARGIN
+    status, value = _in_child(_shrink_record,
+                              (claim, first["case_id"], limits, options.shrink_seconds),
+                              seconds, limits.memory)
+    if status == "ok":
+        record = {"case_id": first["case_id"], "family": first["family"],
+                  "original_sides": first["sides"], **value}
+    else:
+        built, facets = _in_child(_facets_of_case, (claim, first["case_id"]),
+                                  options.case_timeout + CLIENT_MARGIN, limits.memory)
+        if built != "ok":
+            facets = {v: [] for v in claim.variables}
+        record = {"case_id": first["case_id"], "family": first["family"],
+                  "original": facets, "original_sides": first["sides"], "complexes": facets,
+                  "sides": first["sides"], "witness": first.get("witness"),
+                  "evidence": first.get("evidence", "exact"),
+                  "certified": first.get("certified") or [], "steps": [], "evaluations": 0,
+                  "minimal": False, "stopped": f"shrinking could not finish: {value}"}
     store.save_counterexample(run_id, claim.name, first["case_id"], record)
     return record
 

@@ -7,6 +7,10 @@ and repeat.  The result is minimal in the sense of the issue: removing any one v
 any one facet makes the claim hold, leaves its domain, or makes it undefined.  For claims
 over several complexes each variable is shrunk in turn, the others held fixed.
 
+Every evaluation obeys the run's limits; a candidate that runs into the time limit ends
+the shrinking (the result is then marked not minimal), so a slow claim cannot keep the
+client busy for one time limit per candidate.
+
 Deterministic: candidates are tried in the order of the complex's canonical vertex and
 simplex order, so the same failure always shrinks to the same counterexample.
 """
@@ -18,7 +22,7 @@ from dataclasses import dataclass, field
 
 from ..claims.evaluate import Limits
 from ..complex import Complex
-from .cases import holds_on
+from .cases import _judge
 
 __all__ = ["shrink", "Shrunk", "candidates"]
 
@@ -29,6 +33,7 @@ class Shrunk:
     steps: list[str] = field(default_factory=list)
     evaluations: int = 0
     complete: bool = True      # False if the budget ran out before minimality was shown
+    stopped: str | None = None  # why shrinking stopped early, if it did
 
 
 def _without_vertex(K: Complex, v: int) -> Complex | None:
@@ -85,7 +90,15 @@ def shrink(claim, env: dict, limits: Limits, max_evaluations: int = 5000,
                 trial = dict(result.env)
                 trial[variable] = smaller
                 result.evaluations += 1
-                if holds_on(claim, trial, limits) == "fails":
+                judged = _judge(claim, trial, limits)
+                if judged["outcome"] == "limit" and judged.get("message", "").startswith(
+                        "seconds"):
+                    # a smaller case that needs the whole time limit: every further try
+                    # would cost as much, so the shrinker stops here (not minimal)
+                    result.complete = False
+                    result.stopped = f"a candidate reached the time limit ({description})"
+                    return result
+                if judged["outcome"] == "fails":
                     prefix = f"{variable}: " if len(claim.variables) > 1 else ""
                     result.steps.append(prefix + description)
                     result.env = trial
