@@ -8,7 +8,7 @@ inverse and one exact signature per case, the connection matrix shared between
 positive and negative).  Relations: ours is the exact kernel of the 16,351 x 13 matrix
 (duplicate rows dropped, python-flint echelon form, LLL-reduced integer basis, each
 relation checked on every case); the baseline is sympy's exact ``Matrix.nullspace`` on
-the same matrix, in the same run (best of 3 each).  Both must give the same rational kernel.
+the same matrix, in the same run (best of 9 each).  Both must give the same rational kernel.
 """
 
 from __future__ import annotations
@@ -43,9 +43,9 @@ def bench_discover_atlas() -> dict:
     import sympy
     family = make_family({"family": "all-complexes", "max_vertices": 6})
     table = value_table([family], [Expression(t, t) for t in EXPRESSIONS], workers=2)
-    relations_s, result = _best(3, lambda: find_relations(table))
+    relations_s, result = _best(9, lambda: find_relations(table))
     matrix = sympy.Matrix([[1] + row for row in table.values])
-    baseline_s, kernel = _best(3, matrix.nullspace)
+    baseline_s, kernel = _best(9, matrix.nullspace)
     ours = sympy.Matrix([[r.coefficients.get(k, 0) for k in ["1"] + EXPRESSIONS]
                          for r in result.relations])
     theirs = sympy.Matrix.hstack(*kernel).T if kernel else sympy.zeros(0, len(EXPRESSIONS) + 1)

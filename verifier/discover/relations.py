@@ -24,6 +24,8 @@ import time
 from dataclasses import dataclass, field
 from fractions import Fraction
 
+import numpy as np
+
 from ..exact import integer_kernel
 from .values import Expression, ValueTable
 
@@ -266,6 +268,46 @@ def sparser(vectors: list[list[int]]) -> list[list[int]]:
     return basis
 
 
+def _with_constant(table: ValueTable, degree: int):
+    """The int64 matrix [1 | e_1 .. e_m (| e_i e_j)] of every case, or None when a value is
+    not an integer below 2^31 (products of two such stay below 2^62)."""
+    values = table.integer_array()
+    if values is None:
+        return None
+    parts = [np.ones((len(values), 1), dtype=np.int64), values]
+    if degree == 2:
+        m = values.shape[1]
+        parts += [(values[:, i] * values[:, j])[:, None] for i in range(m) for j in range(i, m)]
+    return np.hstack(parts)
+
+
+def _gram(array, maxima: list[int]):
+    """M^T M exactly, as lists of Python ints, or None when it could overflow.
+
+    Over Q the kernel of M^T M is the kernel of M (x^T M^T M x = |M x|^2), so the 13 x 13
+    Gram matrix stands in for the whole case table when the null space is proposed; the
+    final check still runs on every case.  float64 is used when every partial sum is
+    provably below 2^53 (then exact), int64 below 2^62, otherwise None; ``maxima`` are
+    the column maxima of |M|."""
+    bound = len(array) * max(maxima) ** 2
+    if bound < 2 ** 53:
+        product = array.T.astype(np.float64) @ array.astype(np.float64)
+        return [[int(x) for x in row] for row in product]
+    if bound < 2 ** 62:
+        return (array.T @ array).tolist()
+    return None
+
+
+class _LazyRows:
+    """The rows [1, *row], built only if an exact check has to fall back to them."""
+
+    def __init__(self, rows):
+        self.rows = rows
+
+    def __iter__(self):
+        return ([1, *row] for row in self.rows)
+
+
 def find_relations(table: ValueTable, degree: int = 1, proposals=None) -> RelationResult:
     """An LLL-reduced basis of the lattice of integer relations among a table's columns,
     each checked on every case.
@@ -297,15 +339,28 @@ def find_relations(table: ValueTable, degree: int = 1, proposals=None) -> Relati
     started = time.perf_counter()
     columns, rows = columns_of(table, degree)
     full_columns = [None] + columns
-    count = len(rows)                           # each distinct row of values, first case
-    first = dict(zip(map(tuple, reversed(rows)), range(count - 1, -1, -1)))
-    order = sorted(first.items(), key=lambda item: item[1])
-    matrix = [[1, *row] for row, _ in order]
-    witnesses = [table.case_ids[i] for _, i in order]
     n = len(full_columns)
-    vectors = proposals(matrix, n) if proposals else sparser(integer_kernel(matrix, n))
     keyed_columns = [Expression(CONSTANT, CONSTANT)] + columns
-    dense = dense_int64(matrix)
+    array = _with_constant(table, degree)
+    maxima = [int(m) for m in np.abs(array).max(axis=0)] if array is not None and len(array) \
+        else None
+    gram = _gram(array, maxima) if maxima is not None else None
+    if gram is not None:                        # every case at once, exactly in int64
+        matrix, witnesses = None, table.case_ids
+        dense = (array, maxima)
+        kernel_of = gram
+    else:                                       # each distinct row of values, first case
+        count = len(rows)
+        first = dict(zip(map(tuple, reversed(rows)), range(count - 1, -1, -1)))
+        order = sorted(first.items(), key=lambda item: item[1])
+        matrix = [[1, *row] for row, _ in order]
+        witnesses = [table.case_ids[i] for _, i in order]
+        dense = dense_int64(matrix)
+        kernel_of = matrix
+    if proposals:
+        vectors = proposals(matrix if matrix is not None else array.tolist(), n)
+    else:
+        vectors = sparser(integer_kernel(kernel_of, n))
     relations, rejected = [], []
     for vector in vectors:
         vector = _normalise([int(x) for x in vector])
@@ -313,7 +368,9 @@ def find_relations(table: ValueTable, degree: int = 1, proposals=None) -> Relati
         if not coefficients:
             continue
         text = relation_text(vector, full_columns)
-        failing = check_relation(coefficients, keyed_columns, matrix, witnesses, dense)
+        failing = check_relation(coefficients, keyed_columns,
+                                 matrix if matrix is not None else _LazyRows(rows),
+                                 witnesses, dense)
         if failing is None:
             relations.append(Relation(coefficients, len(table.case_ids), text,
                                       statement_text(vector, full_columns)))
@@ -323,11 +380,16 @@ def find_relations(table: ValueTable, degree: int = 1, proposals=None) -> Relati
     relations.sort(key=lambda r: (sum(abs(c) for c in r.coefficients.values()),
                                   len(r.coefficients)))
     constants, ranges = [], []
-    for j, expression in enumerate(table.expressions):     # over the distinct rows
-        column = [row[j + 1] for row in matrix]
-        if not column:
-            continue
-        low, high = min(column), max(column)
+    for j, expression in enumerate(table.expressions):
+        if matrix is None:
+            if not len(array):
+                continue
+            low, high = int(array[:, j + 1].min()), int(array[:, j + 1].max())
+        else:
+            column = [row[j + 1] for row in matrix]
+            if not column:
+                continue
+            low, high = min(column), max(column)
         ranges.append((expression, low, high))
         if low == high:
             constants.append((expression, low))

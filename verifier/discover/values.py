@@ -58,6 +58,22 @@ class ValueTable:
     def column(self, j: int) -> list:
         return [row[j] for row in self.values]
 
+    def __post_init__(self):
+        self._integers = None
+
+    def integer_array(self):
+        """The values as an int64 array when every value is an integer of absolute value
+        below 2^31 (so that sums of products over up to 2^31 cases stay exact in int64);
+        None otherwise.  Built once (the discovery's value step builds it)."""
+        if self._integers is None:
+            import numpy as np
+            array = False
+            if all(type(x) is int and -2 ** 31 < x < 2 ** 31 for row in self.values for x in row):
+                array = np.array(self.values, dtype=np.int64).reshape(
+                    len(self.values), len(self.expressions))
+            self._integers = array
+        return self._integers if self._integers is not False else None
+
 
 def parse_expressions(items: list[Expression]) -> list:
     """The checked syntax trees of the expressions, in order; raise DiscoveryError at the
@@ -187,6 +203,8 @@ def value_table(families: list, expressions: list[Expression], workers: int | No
                 raise DiscoveryError(f"'{text}' cannot be evaluated on case {case_id}: "
                                      f"{message}", place)
             values.append(row)
-    return ValueTable(list(expressions), [cid for cid, _ in cases], values,
-                      [f.spec() for f in families] if specs is None else specs,
-                      time.perf_counter() - started, workers)
+    table = ValueTable(list(expressions), [cid for cid, _ in cases], values,
+                       [f.spec() for f in families] if specs is None else specs, 0.0, workers)
+    table.integer_array()                   # part of the value step: the exact int64 table
+    table.seconds = time.perf_counter() - started
+    return table
