@@ -5,6 +5,9 @@
     verifier show COMPLEX...      exact invariants of catalog names or facet files
                                   (--png FILE also draws a complex, .png or .svg)
     verifier report               a run's report: Markdown, one HTML page, LaTeX
+    verifier runs                 the runs in a store: date, claims, verdicts, command
+    verifier cases                the cases of a run, filtered (table, CSV or JSON)
+    verifier diff RUN_A RUN_B     what changed between two runs (exit 1 if anything did)
     verifier functions            the functions of the claim language
     verifier families             the families claims are tested over
     verifier discover ...         propose relations among invariants (relations FILE), or
@@ -236,7 +239,10 @@ def cmd_run(args, console: Console) -> int:
                          scheduler=args.scheduler, case_memory=args.case_memory,
                          resume=args.resume, max_cases=args.max_cases,
                          case_timeout=args.case_timeout,
-                         data_folders=tuple(args.data_folder or ()))
+                         data_folders=tuple(args.data_folder or ()),
+                         command=" ".join(["verifier", *(args.argv or [])]))
+    if args.again is not None:
+        options.rerun = _again_selection(args)
     try:                           # every option and output path before any work
         check_options(options)
         check_output_folder(args.certificates, "--certificates")
@@ -253,13 +259,15 @@ def cmd_run(args, console: Console) -> int:
         if bar is not None:
             bar.stop()
     try:
-        written = write_certificates(result, args.certificates)
+        written = [] if options.rerun else write_certificates(result, args.certificates)
     except OSError as error:
         raise UserError(f"--certificates {args.certificates}: cannot write a certificate "
                         f"({error.strerror or error}); the run is in the store "
                         f"{result.store}") from None
+    again = (f", again: the failing and unsettled cases of {options.rerun['of']}"
+             if options.rerun else "")
     table = Table(title=f"run {result.run_id} ({result.engine}, {result.workers} workers"
-                        f"{', resumed' if result.resumed else ''})", title_justify="left",
+                        f"{', resumed' if result.resumed else ''}{again})", title_justify="left",
                   box=box.SIMPLE_HEAD, padding=(0, 1))
     table.add_column("claim", no_wrap=True)
     table.add_column("verdict", no_wrap=True)
@@ -271,7 +279,9 @@ def cmd_run(args, console: Console) -> int:
         verdict = r.verdict.split(",")[0] + ("*" if r.claim.expect == "fails" else "")
         table.add_row(r.claim.name, f"{verdict} {mark}", str(r.cases), str(r.counts["fails"]),
                       str(r.counts["outside"]), str(other), f"{r.seconds:.0f}")
-    console.print(table)
+    _print_table(console, table)
+    console.print("[dim]s: seconds of computation summed over the claim's cases (not wall "
+                  "time; the run's wall time is on the last line)[/dim]")
     if any(r.claim.expect == "fails" for r in result.claims):
         console.print("[dim]* expected to fail: ok means a counterexample was found[/dim]")
     for r in result.claims:
@@ -289,9 +299,190 @@ def cmd_run(args, console: Console) -> int:
         for p in r.problems:
             console.print(f"[yellow]{r.claim.name}[/yellow]: case {escape(p['case_id'])}: "
                           f"{p['outcome']}: {escape(str(p['message']))}", highlight=False)
-    console.print(f"store: {result.store}; certificates: {len(written)} written to "
-                  f"{args.certificates}; {result.seconds:.1f} s", highlight=False)
+    if options.rerun:
+        console.print(f"store: {result.store}; no certificates: this run covers only the "
+                      "cases evaluated again (a full run certifies a claim); wall time "
+                      f"{result.seconds:.1f} s", highlight=False)
+    else:
+        console.print(f"store: {result.store}; certificates: {len(written)} written to "
+                      f"{args.certificates}; wall time {result.seconds:.1f} s", highlight=False)
     return 0 if result.ok else 1
+
+
+def _again_selection(args) -> dict:
+    """The failing and unsettled cases of the run named by --again (same store)."""
+    from .claims.errors import ClaimError
+    from .claims.loader import load_paths
+    from .run.queries import QueryError, again_cases
+
+    if args.resume:
+        raise UserError("--again starts a new run; it cannot be combined with --resume")
+    if args.max_cases is not None:
+        raise UserError("--again evaluates the earlier run's cases; it cannot be combined "
+                        "with --max-cases")
+    try:
+        claims = load_paths(args.paths)
+        return again_cases(args.store, args.again, claims)
+    except ClaimError as error:
+        raise UserError(str(error)) from None
+    except QueryError as error:
+        raise UserError(f"--again: {error}") from None
+
+
+def _print_table(console: Console, table: Table) -> None:
+    """A table with every column whatever the output: a terminal keeps its width, a file
+    or a pipe gets the width the table needs (nothing dropped or cut)."""
+    if console.is_terminal:
+        console.print(table)
+        return
+    from rich.measure import Measurement
+    saved = console.width
+    console.width = max(saved, Measurement.get(
+        console, console.options.update_width(10_000), table).maximum)
+    try:
+        console.print(table)
+    finally:
+        console.width = saved
+
+
+def _bounds(text: str) -> tuple:
+    """'LOW:HIGH', 'LOW:' or ':HIGH' or 'N' -> (low, high), None for a missing end."""
+    pieces = text.split(":") if ":" in text else [text, text]
+    if len(pieces) != 2 or not all(re.fullmatch(r"[0-9]{0,12}", p.strip()) for p in pieces) \
+            or not any(p.strip() for p in pieces):
+        raise argparse.ArgumentTypeError(f"expected N, LOW:HIGH, LOW: or :HIGH with whole "
+                                         f"numbers, got {text[:40]!r}")
+    low, high = (int(p) if p.strip() else None for p in pieces)
+    if low is not None and high is not None and low > high:
+        raise argparse.ArgumentTypeError(f"LOW must not exceed HIGH, got {text[:40]!r}")
+    return low, high
+
+
+def _values_text(row: dict) -> str:
+    if row["outcome"] in UNSETTLED or (not row["sides"] and row.get("message")):
+        return row.get("message") or ""
+    return "  vs  ".join(str(x) for x in row["sides"])
+
+
+def _sizes_text(sizes: dict | None, which: int) -> str:
+    if not sizes:
+        return "-"
+    if len(sizes) == 1:
+        return str(next(iter(sizes.values()))[which])
+    return ", ".join(f"{v}: {pair[which]}" for v, pair in sizes.items())
+
+
+def cmd_cases(args, console: Console) -> int:
+    import csv
+    import io
+    from .run.queries import QueryError, cases
+
+    try:
+        run_id, rows = cases(args.store, args.run, args.claim, args.outcome, args.family,
+                             args.vertices, args.simplices)
+    except QueryError as error:
+        raise UserError(str(error)) from None
+    shown = rows if args.limit is None else rows[:args.limit]
+    if args.output == "json":
+        print(json.dumps({"run": run_id, "cases": len(rows), "shown": [
+            {k: r[k] for k in ("claim", "case_id", "family", "outcome", "evidence", "sizes",
+                               "sides", "message", "seconds", "complex_hash")}
+            for r in shown]}, indent=1))
+        return 0
+    if args.output == "csv":
+        buffer = io.StringIO()
+        writer = csv.writer(buffer, lineterminator="\n")
+        writer.writerow(["claim", "case", "family", "outcome", "vertices", "simplices",
+                         "values", "seconds"])
+        for r in shown:
+            writer.writerow([r["claim"], r["case_id"], r["family"], r["outcome"],
+                             _sizes_text(r["sizes"], 0), _sizes_text(r["sizes"], 1),
+                             _values_text(r), f"{r['seconds']:.4f}"])
+        sys.stdout.write(buffer.getvalue())
+        return 0
+    table = Table(title=f"run {run_id}: {len(rows)} cases"
+                        + (f" (the first {len(shown)} shown; --limit)" if len(shown) < len(rows)
+                           else ""), title_justify="left", box=box.SIMPLE_HEAD, padding=(0, 1))
+    for column in ("claim", "case", "outcome"):
+        table.add_column(column, no_wrap=True)
+    table.add_column("vertices", justify="right", no_wrap=True)
+    table.add_column("simplices", justify="right", no_wrap=True)
+    table.add_column("values")
+    for r in shown:
+        table.add_row(escape(r["claim"]), escape(r["case_id"]), r["outcome"],
+                      _sizes_text(r["sizes"], 0), _sizes_text(r["sizes"], 1),
+                      escape(_values_text(r)))
+    _print_table(console, table)
+    return 0
+
+
+def cmd_runs(args, console: Console) -> int:
+    from .run.queries import QueryError, runs
+
+    try:
+        found = runs(args.store)
+    except QueryError as error:
+        raise UserError(str(error)) from None
+    if args.output == "json":
+        print(json.dumps(found, indent=1))
+        return 0
+    if not found:
+        console.print(f"{escape(args.store)}: no run yet", highlight=False)
+        return 0
+    table = Table(title=f"{len(found)} runs in {args.store} (newest first)", title_justify="left",
+                  box=box.SIMPLE_HEAD, padding=(0, 1), show_lines=False)
+    table.add_column("run", no_wrap=True)
+    table.add_column("started", no_wrap=True)
+    table.add_column("claims: verdicts")
+    table.add_column("command")
+    for r in found:
+        verdicts = "\n".join(f"{name}: {c['verdict']} ({c['cases']} cases)"
+                             + ("" if c["ok"] else " NOT OK") for name, c in r["claims"].items())
+        status = "" if r["finished"] else "\n(unfinished)"
+        command = r["command"] or "(not recorded)"
+        if r["again_of"]:
+            command += f"\n(again: cases of {r['again_of']})"
+        table.add_row(r["run_id"], (r["started"] or "") + status, escape(verdicts),
+                      escape(command))
+    _print_table(console, table)
+    return 0
+
+
+def cmd_diff(args, console: Console) -> int:
+    from .run.queries import QueryError, compare
+
+    try:
+        result = compare(args.store, args.first, args.second)
+    except QueryError as error:
+        raise UserError(str(error)) from None
+    if args.output == "json":
+        print(json.dumps(result, indent=1))
+        return 1 if result["changed"] else 0
+    say = lambda text: console.print(escape(text), highlight=False, soft_wrap=True)  # noqa: E731
+    say(f"from run {result['first']} to run {result['second']}:")
+    for name, e in result["claims"].items():
+        before, after = e["verdict"]
+        if not e["changed"]:
+            say(f"  {name}: unchanged ({after}, {e['cases'][1]} cases, same digest)")
+            continue
+        if before is None or after is None:
+            say(f"  {name}: only in run {result['second'] if before is None else result['first']}"
+                f" ({after or before})")
+            continue
+        say(f"  {name}: verdict {before} -> {after}" if before != after
+            else f"  {name}: verdict {after} in both")
+        for key, words in (("fails_appeared", "now fail"), ("fails_disappeared", "no longer fail"),
+                           ("unsettled_appeared", "now unsettled"),
+                           ("unsettled_disappeared", "no longer unsettled")):
+            ids = e[key]
+            if ids:
+                more = f", ... ({len(ids)} in all)" if len(ids) > 5 else ""
+                say(f"    {len(ids)} cases {words}: {', '.join(ids[:5])}{more}")
+        if e["digest"][0] != e["digest"][1]:
+            say(f"    digest differs: {e['digest'][0][:16]} -> {e['digest'][1][:16]} "
+                f"({e['cases'][0]} -> {e['cases'][1]} cases)")
+    say(f"{len(result['changed'])} of {len(result['claims'])} claims changed")
+    return 1 if result["changed"] else 0
 
 
 def cmd_check(args, console: Console) -> int:
@@ -400,7 +591,7 @@ def cmd_summary(args, console: Console) -> int:
         raise UserError(f"{args.store}: no such store (run `verifier run` first)")
     start = time.perf_counter()
     try:
-        store = Store(args.store)
+        store = Store.read_only(args.store)      # a summary never writes to the store
     except StoreError as error:
         raise UserError(str(error)) from None
     try:
@@ -427,7 +618,7 @@ def cmd_summary(args, console: Console) -> int:
         table.add_row(name, str(entry["cases"]),
                       str(counts.get("holds", 0)), str(counts.get("fails", 0)),
                       str(counts.get("outside", 0)), str(other), f"{entry['seconds']:.0f}")
-    console.print(table)
+    _print_table(console, table)
     if any(c.get("expect") == "fails" for c in request.get("claims", [])):
         console.print("[dim]* expected to fail[/dim]")
     console.print(f"[dim]{escape(args.store)}, read in {time.perf_counter() - start:.2f} s[/dim]")
@@ -625,7 +816,45 @@ def build_parser() -> argparse.ArgumentParser:
     run.add_argument("--case-memory", type=_integer, default=None, metavar="MB",
                      help="memory one case may use on a worker, in megabytes (default: no cap)")
     run.add_argument("--quiet", action="store_true", help="no progress bar")
+    run.add_argument("--again", metavar="RUN", default=None,
+                     help="evaluate again only the failing and unsettled cases of the earlier "
+                          "run RUN of the same store (a new run; no certificates)")
     run.set_defaults(handler=cmd_run)
+
+    listing = commands.add_parser("cases", help="the cases of a run, filtered")
+    listing.add_argument("--store", default="reports/verifier.sqlite", help="SQLite store")
+    listing.add_argument("--run", default=None, help="run id or its beginning (default: "
+                         "the latest run)")
+    listing.add_argument("--claim", default=None, help="only this claim's cases")
+    listing.add_argument("--outcome", action="append", default=None, metavar="OUTCOME",
+                         help="only cases with this outcome: holds, fails, outside, error, "
+                              "limit, weak, undecided, unsettled (the last four) or again "
+                              "(fails and unsettled); may be repeated")
+    listing.add_argument("--family", default=None, help="only cases from this family")
+    listing.add_argument("--vertices", type=_bounds, default=None, metavar="LOW:HIGH",
+                         help="only cases whose largest complex has this many vertices "
+                              "(N, LOW:HIGH, LOW: or :HIGH)")
+    listing.add_argument("--simplices", type=_bounds, default=None, metavar="LOW:HIGH",
+                         help="the same for the number of simplices")
+    listing.add_argument("--as", dest="output", choices=["table", "csv", "json"],
+                         default="table", help="output format (default table)")
+    listing.add_argument("--limit", type=_count(1, 10**9), default=None, metavar="N",
+                         help="show at most N cases")
+    listing.set_defaults(handler=cmd_cases)
+
+    history = commands.add_parser("runs", help="the runs in a store")
+    history.add_argument("--store", default="reports/verifier.sqlite", help="SQLite store")
+    history.add_argument("--as", dest="output", choices=["table", "json"], default="table",
+                         help="output format (default table)")
+    history.set_defaults(handler=cmd_runs)
+
+    versus = commands.add_parser("diff", help="what changed between two runs")
+    versus.add_argument("first", metavar="RUN_A", help="the earlier run (id or its beginning)")
+    versus.add_argument("second", metavar="RUN_B", help="the later run")
+    versus.add_argument("--store", default="reports/verifier.sqlite", help="SQLite store")
+    versus.add_argument("--as", dest="output", choices=["text", "json"], default="text",
+                        help="output format (default text)")
+    versus.set_defaults(handler=cmd_diff)
 
     check = commands.add_parser("check", help="re-verify certificates independently")
     check.add_argument("certificates", nargs="*", metavar="CERT")
@@ -769,6 +998,7 @@ def main(argv: list[str] | None = None) -> int:
         parser.print_help()
         return 2
     console = Console(emoji=False)
+    args.argv = list(sys.argv[1:] if argv is None else argv)
     try:
         return args.handler(args, console)
     except UserError as error:

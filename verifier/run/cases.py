@@ -96,6 +96,8 @@ def evaluate_case(claim: Claim, case_id: str, limits: Limits) -> dict:
         with time_limit(deadline, limits.seconds):
             env = complexes_of(claim, case_id)
             record["complex_hash"] = ",".join(env[v].content_hash for v in claim.variables)
+            record["sizes"] = {v: [env[v].n_vertices, len(env[v].simplices)]
+                               for v in claim.variables}      # for `verifier cases`
     except LimitExceeded as error:
         record.update(complex_hash="", outcome="limit",
                       message=f"{error.limit}: building the case: {error.message}")

@@ -204,6 +204,9 @@ class RunOptions:
     shrink_seconds: float = 300.0
     data_folders: tuple = ()               # folders a `file` family may read besides the
                                            # claim file's own (verifier run --data-folder)
+    command: str | None = None             # the command line, recorded with the run
+    rerun: dict | None = None              # {"of": run id, "cases": {claim: [case ids]}}:
+                                           # evaluate only these cases (verifier run --again)
 
 
 @dataclass
@@ -247,7 +250,8 @@ def request_of(claims: list[Claim], options: RunOptions) -> dict:
     contents = {f: hashlib.sha256(Path(f).read_bytes()).hexdigest() for f in files}
     return {"files": files, "file_sha256": contents,
             "claims": [c.to_json() for c in claims], "max_cases": options.max_cases,
-            "limits": limits_dict(Limits(seconds=options.case_timeout))}
+            "limits": limits_dict(Limits(seconds=options.case_timeout)),
+            **({"rerun": options.rerun} if options.rerun else {})}
 
 
 def digest_of(rows) -> str:
@@ -314,6 +318,11 @@ def run(paths, options: RunOptions | None = None, progress=None) -> RunResult:
 def _run(paths, options: RunOptions, progress) -> RunResult:
     started = time.monotonic()
     claims = load_paths(paths)
+    if options.rerun is not None:      # only the claims that have cases to evaluate again
+        claims = [c for c in claims if options.rerun["cases"].get(c.name)]
+        if not claims:
+            raise OptionError(f"--again {options.rerun['of']}: that run has no failing or "
+                              "unsettled case of these claims: nothing to evaluate again")
     files = sources_of(claims)
     request = request_of(claims, options)
     run_id = hashlib.sha256(json.dumps(request, sort_keys=True).encode()).hexdigest()[:16]
@@ -338,7 +347,7 @@ def _run(paths, options: RunOptions, progress) -> RunResult:
                 raise OptionError(f"--resume: nothing to resume in {str(options.store)!r}: "
                                   f"{state} (run without --resume to start a new run)")
             run_id = previous[0]
-        resumed = store.open_run(run_id, request, options.engine)
+        resumed = store.open_run(run_id, request, options.engine, options.command)
         _claims_cache(files)   # loaded once here; forked workers inherit it
         engine_class = ENGINES[options.engine]
         memory = case_memory(options)
@@ -386,8 +395,11 @@ def _run_claim(claim: Claim, files, run_id: str, store: Store, engine, options: 
     bounds = _limits(options, engine.workers)
     limits = limits_dict(bounds)
     planner = getattr(engine, "plan", None)
-    ids = (planner(plan_ids, files, claim.name, options.max_cases) if planner
-           else plan_ids(files, claim.name, options.max_cases))
+    if options.rerun is not None:      # the earlier run's failing and unsettled cases
+        ids = sorted(options.rerun["cases"].get(claim.name, []))
+    else:
+        ids = (planner(plan_ids, files, claim.name, options.max_cases) if planner
+               else plan_ids(files, claim.name, options.max_cases))
     done = store.done_cases(run_id, claim.name)
     todo = [cid for cid in ids if cid not in done]
     size = options.batch_size or _batch_size(len(ids), engine.workers)

@@ -170,25 +170,63 @@ class Store:
             columns = {row[1] for row in self.db.execute("PRAGMA table_info(cases)")}
             if "certified" not in columns:       # a store written before certified values
                 self.db.execute("ALTER TABLE cases ADD COLUMN certified TEXT")
+            if "sizes" not in columns:           # a store written before case sizes
+                self.db.execute("ALTER TABLE cases ADD COLUMN sizes TEXT")
+            run_columns = {row[1] for row in self.db.execute("PRAGMA table_info(runs)")}
+            if "command" not in run_columns:     # a store written before commands
+                self.db.execute("ALTER TABLE runs ADD COLUMN command TEXT")
             self.db.commit()
         except sqlite3.Error as error:
             self.db.close()
             raise StoreError(f"store {str(self.path)!r} cannot be used as a store "
                              f"({error})") from None
 
+    @classmethod
+    def read_only(cls, path: str | Path) -> "Store":
+        """Open an existing store for reading only: nothing is created, migrated or
+        written (SQLite's read-only mode), so queries can never change a store.  Columns
+        added by later versions read as NULL in an older store."""
+        path = Path(path)
+        if not path.is_file():
+            raise StoreError(f"store {str(path)!r}: no such file (run `verifier run` first, "
+                             "or name a store with --store)")
+        with open(path, "rb") as handle:
+            if handle.read(16) != b"SQLite format 3\x00":
+                raise StoreError(f"store {str(path)!r} is not an SQLite file (a store is one)")
+        store = cls.__new__(cls)
+        store.path = path
+        try:
+            store.db = sqlite3.connect(f"file:{path.resolve()}?mode=ro", uri=True, timeout=30)
+            tables = {r[0] for r in store.db.execute(
+                "SELECT name FROM sqlite_master WHERE type = 'table'")}
+        except sqlite3.Error as error:
+            raise StoreError(f"store {str(path)!r} cannot be read ({error})") from None
+        if not {"runs", "cases"} <= tables:
+            store.db.close()
+            raise StoreError(f"store {str(path)!r} is not a store of runs (tables: "
+                             f"{', '.join(sorted(tables)[:5]) or 'none'})")
+        return store
+
     def close(self):
         self.db.close()
 
+    def _has_column(self, table: str, column: str) -> bool:
+        return any(row[1] == column for row in self.db.execute(f"PRAGMA table_info({table})"))
+
     # ------------------------------------------------------------------ runs
-    def open_run(self, run_id: str, request: dict, engine: str) -> bool:
-        """Start (or find) a run; True if it already existed (a resume)."""
+    def open_run(self, run_id: str, request: dict, engine: str,
+                 command: str | None = None) -> bool:
+        """Start (or find) a run; True if it already existed (a resume).  ``command`` is
+        the command line that started it (kept as first written)."""
         row = self.db.execute("SELECT run_id FROM runs WHERE run_id = ?", (run_id,)).fetchone()
         if row:
             self.db.execute("UPDATE runs SET finished = NULL WHERE run_id = ?", (run_id,))
             self.db.commit()
             return True
-        self.db.execute("INSERT INTO runs VALUES (?, ?, ?, NULL, ?)",
-                        (run_id, json.dumps(request, sort_keys=True), time.time(), engine))
+        self.db.execute("INSERT INTO runs (run_id, request, started, finished, engine, command) "
+                        "VALUES (?, ?, ?, NULL, ?, ?)",
+                        (run_id, json.dumps(request, sort_keys=True), time.time(), engine,
+                         command))
         self.db.commit()
         return False
 
@@ -217,13 +255,14 @@ class Store:
         """Write evaluated cases in one transaction (a case already present is kept)."""
         self.db.executemany(
             "INSERT OR IGNORE INTO cases (run_id, claim, case_id, family, complex_hash, outcome, "
-            "evidence, sides, witness, message, seconds, certified) "
-            "VALUES (?,?,?,?,?,?,?,?,?,?,?,?)",
+            "evidence, sides, witness, message, seconds, certified, sizes) "
+            "VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?)",
             [(run_id, r["claim"], r["case_id"], r["family"], r["complex_hash"], r["outcome"],
               r.get("evidence"), json.dumps(r.get("sides") or []),
               json.dumps(r.get("witness")) if r.get("witness") else None,
               r.get("message"), r.get("seconds", 0.0),
-              json.dumps(r["certified"]) if r.get("certified") else None) for r in records])
+              json.dumps(r["certified"]) if r.get("certified") else None,
+              json.dumps(r["sizes"]) if r.get("sizes") else None) for r in records])
         self.db.commit()
 
     def counts(self, run_id: str, claim: str) -> dict[str, int]:
@@ -284,6 +323,45 @@ class Store:
         """(run_id, started, finished, engine) of every run, newest first."""
         return list(self.db.execute("SELECT run_id, started, finished, engine FROM runs "
                                     "ORDER BY started DESC"))
+
+    # ------------------------------------------------------------ read queries
+    def run_ids(self) -> list[str]:
+        """Every run id, newest first."""
+        return [r[0] for r in self.db.execute("SELECT run_id FROM runs ORDER BY started DESC")]
+
+    def run_records(self) -> list[dict]:
+        """Every run with its request, times, engine and command, newest first."""
+        command = "command" if self._has_column("runs", "command") else "NULL"
+        rows = self.db.execute(f"SELECT run_id, request, started, finished, engine, {command} "
+                               "FROM runs ORDER BY started DESC")
+        return [{"run_id": r, "request": json.loads(q), "started": s, "finished": f,
+                 "engine": e, "command": c} for r, q, s, f, e, c in rows]
+
+    def case_records(self, run_id: str, claim: str | None = None,
+                     outcomes: tuple[str, ...] | None = None) -> list[dict]:
+        """The cases of a run (optionally of one claim, with given outcomes), in (claim,
+        case id) order, each with its family, hash, outcome, evidence, values, message,
+        time and sizes ({variable: [vertices, simplices]}, None if not recorded)."""
+        sizes = "sizes" if self._has_column("cases", "sizes") else "NULL"
+        query = (f"SELECT claim, case_id, family, complex_hash, outcome, evidence, sides, "
+                 f"message, seconds, {sizes} FROM cases WHERE run_id = ?")
+        parameters: list = [run_id]
+        if claim is not None:
+            query += " AND claim = ?"
+            parameters.append(claim)
+        if outcomes is not None:
+            query += f" AND outcome IN ({', '.join('?' * len(outcomes))})"
+            parameters.extend(outcomes)
+        query += " ORDER BY claim, case_id"
+        return [{"claim": c, "case_id": i, "family": f, "complex_hash": h, "outcome": o,
+                 "evidence": e, "sides": json.loads(s or "[]"), "message": m,
+                 "seconds": t or 0.0, "sizes": json.loads(z) if z else None}
+                for c, i, f, h, o, e, s, m, t, z in self.db.execute(query, parameters)]
+
+    def claims_of_run(self, run_id: str) -> list[str]:
+        """The names of the claims with cases in a run, sorted."""
+        return [r[0] for r in self.db.execute(
+            "SELECT DISTINCT claim FROM cases WHERE run_id = ? ORDER BY claim", (run_id,))]
 
     def save_counterexample(self, run_id: str, claim: str, case_id: str, record: dict):
         self.db.execute("INSERT OR REPLACE INTO counterexamples VALUES (?,?,?,?)",
