@@ -170,3 +170,46 @@ def test_again_with_nothing_to_evaluate_is_refused(store, capsys):
     assert _run(folder, "--again", again) == 2
     assert "that run has no failing or unsettled case of these claims" in \
         capsys.readouterr().err
+
+
+# ------------------------------------------------------------ claims from a notebook
+def test_check_runs_a_statement_without_a_file_and_writes_a_certificate(tmp_path):
+    # the energy theorem (O. Knill, Linear Algebra Appl. 600 (2020)) on the 8 complexes
+    # with at most 3 vertices; "euler(K) <= 1" fails first on two points (chi = 2)
+    import verifier
+    from verifier.certificates import load
+    from verifier.run.runner import RunResult
+
+    result = verifier.check("sum(green(K)) == euler(K)",
+                            over=[{"family": "all-complexes", "max_vertices": 3}],
+                            certificates=tmp_path / "certs", store=tmp_path / "n.sqlite")
+    assert isinstance(result, RunResult) and result.ok
+    assert (result.claims[0].verdict, result.claims[0].cases) == ("holds", 8)
+    assert "<table" in result._repr_html_()
+    (path,) = result.certificates
+    assert load(path)["claim"]["statement"] == "sum(green(K)) == euler(K)"
+    runs = json.loads(_query(["runs", "--store", str(tmp_path / "n.sqlite"), "--as", "json"]))
+    assert runs[0]["command"].startswith("verifier.check('sum(green(K)) == euler(K)'")
+    failing = verifier.check("euler(K) <= 1", where="dim(K) == 0",
+                             over=[{"family": "all-complexes", "max_vertices": 3}],
+                             expect="fails")
+    assert failing.ok and failing.claims[0].counterexample["complexes"] == {"K": [[0], [1]]}
+
+
+def test_check_reports_a_bad_statement_at_its_column():
+    import verifier
+    from verifier.claims.errors import ClaimError
+    with pytest.raises(ClaimError, match="unknown function 'gren'; did you mean 'green'"):
+        verifier.check("sum(gren(K)) == 1", over=[{"family": "all-complexes",
+                                                   "max_vertices": 2}])
+
+
+def test_catalog_entry_has_facets_for_every_name():
+    # constructed names used to give facets = None; the boundary of the triangle is the
+    # 3-cycle, and the recipe of sphere-2 (boundary of the tetrahedron) has 4 triangles
+    from verifier.families import catalog
+    assert catalog.entry("sphere-1")["facets"] == [[1, 2], [1, 3], [2, 3]]
+    for name in catalog.names():
+        record = catalog.entry(name)
+        assert record["facets"] == catalog.complex(name).facet_labels(), name
+    assert len(catalog.entry("sphere-2")["facets"]) == 4

@@ -38,7 +38,8 @@ from math import comb, factorial
 from ..complex import Complex
 from . import constructions
 
-__all__ = ["CatalogError", "names", "patterns", "entry", "complex", "MAX_SIMPLICES"]
+__all__ = ["CatalogError", "names", "recorded_names", "patterns", "entry", "complex",
+           "MAX_SIMPLICES"]
 
 # Constructed names whose complexes would have more simplices than this are refused.
 MAX_SIMPLICES = 2_000_000
@@ -120,6 +121,17 @@ def names() -> list[str]:
     return listed
 
 
+def recorded_names() -> list[str]:
+    """The names of the recorded entries (facets transcribed or built from a standard
+    recipe, in the data file), in file order; the other names of :func:`names` are
+    constructed.
+
+    >>> "torus-7" in recorded_names(), "sphere-2" in recorded_names()
+    (True, False)
+    """
+    return list(_data())
+
+
 def patterns() -> list[str]:
     """The templates of the constructed names, e.g. ``"surface-orientable-<g>"``.
 
@@ -183,7 +195,8 @@ def entry(name: str) -> dict:
     dimension, vertices, f_vector, euler, betti_Q, torsion, betti_F2, betti_F3,
     orientable, source, provenance, facets``, some entries also ``pi1_order``).  For a
     constructed name, a record with the same keys holding the invariants the recipe's
-    mathematics predicts (``facets`` is None: build the complex with :func:`complex`).
+    mathematics predicts, and the facets of the complex the recipe builds (vertices
+    1..n).  For a :class:`Complex` to compute with, use :func:`complex`.
     ``betti_Q[k]`` is the rank of H_k(K; Z), ``torsion[k]`` its invariant factors > 1.
 
     Parameters: name -- a catalog name (see :func:`names`, :func:`patterns`).
@@ -193,10 +206,16 @@ def entry(name: str) -> dict:
     0
     >>> entry("sphere-3")["f_vector"]
     [5, 10, 10, 5]
+    >>> entry("sphere-1")["facets"]
+    [[1, 2], [1, 3], [2, 3]]
 
     Reference: each record's ``source`` field.
     """
-    return copy.deepcopy(_resolve(name)[1])
+    kind, record = _resolve(name)
+    record = copy.deepcopy(record)
+    if record.get("facets") is None:      # a constructed name: the recipe's facets
+        record["facets"] = complex(name).facet_labels()
+    return record
 
 
 def complex(name: str) -> Complex:

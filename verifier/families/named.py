@@ -48,7 +48,7 @@ __all__ = ["CATALOG", "FILE", "FACET_SUFFIXES", "GRAPH_SUFFIXES", "data_folders"
 
 # ------------------------------------------------------------------ catalog
 def _recorded_names() -> list[str]:
-    return [name for name in catalog.names() if catalog.entry(name)["facets"] is not None]
+    return catalog.recorded_names()
 
 
 def _check_names(value, context):
