@@ -213,3 +213,28 @@ def test_catalog_entry_has_facets_for_every_name():
         record = catalog.entry(name)
         assert record["facets"] == catalog.complex(name).facet_labels(), name
     assert len(catalog.entry("sphere-2")["facets"]) == 4
+
+
+# ------------------------------------------------------------------ output wording
+def test_summary_off_a_terminal_keeps_every_column_and_explains_s(store):
+    # stdout captured (not a terminal, 80 columns by default): no column is dropped or cut
+    folder, first, _ = store
+    out = _query(["summary", "--store", str(folder / "s.sqlite"), "--run", first])
+    header = next(line for line in out.splitlines() if "claim" in line)
+    assert header.split() == ["claim", "cases", "holds", "fails", "outside", "other", "s"]
+    (folder / "other.toml").write_text(CLAIM.format(where="").replace(
+        '"small-euler"', '"a-claim-with-a-rather-long-name-for-the-table"'))
+    out = _query(["run", str(folder / "other.toml"), "--store", str(folder / "o.sqlite"),
+                  "--certificates", str(folder / "certs"), "--engine", "inline", "--quiet"])
+    assert "a-claim-with-a-rather-long-name-for-the-table   fails NOT OK" in out
+    assert "s: seconds of computation summed over the claim's cases (not wall time" in out
+
+
+def test_search_by_name_says_it_looks_in_claims_only(tmp_path, monkeypatch, capsys):
+    (tmp_path / "claims").mkdir()
+    (tmp_path / "claims" / "small.toml").write_text(CLAIM.format(where=""))
+    monkeypatch.chdir(tmp_path)
+    assert main(["search", "energy", "--seconds", "1"]) == 2
+    assert capsys.readouterr().err.strip() == (
+        "error: search: no claim named 'energy' in ./claims (a claim's name is looked up "
+        "there only; give the claim file's path instead)")

@@ -549,7 +549,9 @@ def cmd_search(args, console: Console) -> int:
     if args.claim:
         claims = [c for c in claims if c.name == args.claim]
         if not claims:
-            raise UserError(f"search: no claim named '{args.claim}' in {', '.join(paths)}")
+            where = ("./claims (a claim's name is looked up there only; give the claim "
+                     "file's path instead)" if paths == ["claims"] else ", ".join(paths))
+            raise UserError(f"search: no claim named '{args.claim}' in {where}")
     if len(claims) != 1:
         raise UserError("search: the files hold several claims; choose one with --claim NAME "
                         f"({', '.join(c.name for c in claims)})")
