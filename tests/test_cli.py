@@ -137,3 +137,23 @@ def test_energy_explorer_writes_diagram_and_exact_facts(tmp_path):
     assert (tmp_path / "energy-path3.csv").read_text().count("\n") > 12
     bad = run("energy", str(path), "--temperatures", "2:x")
     assert bad.returncode == 2 and "expected A:B:N" in bad.stderr
+
+
+def test_a_search_certificate_is_checked_from_its_recorded_original(tmp_path):
+    # common practice, no source: a search certificate names no family case, so the
+    # checker re-evaluates the recorded original and replays the shrinking from it; an
+    # original that does not fail (a single edge is outside dim(K) == 2) is refused even
+    # with both hashes recomputed
+    from verifier.certificates import _load, seal
+    result = run("search", "claims/hydrogen-2d-fails.toml", "--seconds", "30", "--seed", "3",
+                 "--certificates", str(tmp_path))
+    assert result.returncode == 0, result.stdout + result.stderr
+    path = tmp_path / "hydrogen-identity-2d.json"
+    data = _load(path)
+    assert data["cases"] == 1 and data["outcomes"]["fails"] == 1
+    data["original"]["complexes"]["K"]["facets"] = [[1, 2]]
+    body = {k: v for k, v in data.items() if k != "sha256"}
+    path.write_text(json.dumps(seal(body), sort_keys=True))
+    checked = run("check", str(path))
+    assert checked.returncode == 1
+    assert "NOT verified" in checked.stdout

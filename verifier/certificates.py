@@ -691,7 +691,8 @@ class _Check:
                             f"planned its cases with), got {_shown(cap)}")
         caps = [c for c in (claim.max_cases, cap) if c is not None]
         self.cap = min(caps) if caps else None
-        expected = _planned_size(claim, self.cap)
+        self.search = _found_by_search(data)
+        expected = 1 if self.search else _planned_size(claim, self.cap)
         if expected is not None and expected != announced:
             raise _Rejected(f"mismatch: the certificate's families plan {expected:,} cases, "
                             f"it says {announced:,} (nothing was evaluated)")
@@ -817,6 +818,13 @@ class _Check:
 
         from .run.cases import complexes_of, plan
         from .run.runner import digest_of
+        if self.search:                 # one case, found beyond the families
+            minimal = {v: data["complexes"][v]["facets"] for v in claim.variables}
+            if _search_digest(minimal) != data["digest"]:
+                raise _Rejected("mismatch: the digest is not the one of the certified "
+                                "counterexample")
+            self.ids, self.envs, self.chosen, self.tasks = [], {}, [], []
+            return
         ids = list(itertools.islice(plan(claim, self.cap), announced + 1))
         if len(ids) != announced:
             raise _Rejected(f"mismatch: {len(ids)} cases re-planned, certificate says "
@@ -849,16 +857,21 @@ class _Check:
         from .run.cases import family_label
         from .run.shrink import candidates
         original = data["original"]
-        if original["case_id"] not in self.envs:
+        if self.search:                 # the complex the search found, as recorded
+            env = {v: Complex.from_facets([[_tuple_labels(x) for x in f]
+                                           for f in original["complexes"][v]["facets"]])
+                   for v in claim.variables}
+        elif original["case_id"] not in self.envs:
             raise _Rejected(f"mismatch: original.case_id {_shown(original['case_id'])} is not a "
                             "case of the claim's families")
-        env = self.envs[original["case_id"]]
-        for v in claim.variables:
+        else:
+            env = self.envs[original["case_id"]]
+        for v in claim.variables if not self.search else ():
             if _plain(env[v].facet_labels()) != original["complexes"][v]["facets"]:
                 raise _Rejected(f"mismatch: original.complexes.{v} is not case "
                                 f"{original['case_id']} of its family (rebuilt: "
                                 f"{_shown(_plain(env[v].facet_labels()))})")
-        if family_label(claim, original["case_id"]) != original["family"]:
+        if not self.search and family_label(claim, original["case_id"]) != original["family"]:
             raise _Rejected(f"mismatch: original.family is {_shown(original['family'])}, case "
                             f"{original['case_id']} belongs to "
                             f"{_shown(family_label(claim, original['case_id']))}")
@@ -1035,7 +1048,8 @@ class _Check:
                 raise _Rejected(f"mismatch: the first failing case is {failing[0]}, not the "
                                 f"original {original['case_id']}")
         self._replay(trials)
-        counted = self._recount(cases)
+        counted = ("found by a search beyond the families: its original complex is taken as "
+                   "recorded" if self.search else self._recount(cases))
         self.result.reason = ("verified: the statement fails on the counterexample and on the "
                               "original case, the shrinking record replayed, no move of the "
                               f"shrinker from it fails, digest recomputed, {counted} "
@@ -1122,6 +1136,19 @@ def _with_data_folder(spec, folder):
                                    "holds them with --data-folder")
         spec.update(path=".", _base=os.path.realpath(str(folder)))
     return spec
+
+
+def _found_by_search(data: dict) -> bool:
+    """Was the counterexample found by `verifier search` (beyond the claim's families)?"""
+    engine, original = data.get("engine"), data.get("original")
+    return (data.get("kind") == "counterexample" and isinstance(engine, dict)
+            and engine.get("name") == "search" and isinstance(original, dict)
+            and original.get("family") == "search")
+
+
+def _search_digest(complexes: dict) -> str:
+    """The digest of a search certificate: SHA-256 of the minimal complexes' facets."""
+    return hashlib.sha256(json.dumps(complexes, sort_keys=True, default=str).encode()).hexdigest()
 
 
 def _planned_size(planned, cap=None) -> int | None:

@@ -573,11 +573,14 @@ def cmd_search(args, console: Console) -> int:
                   f"({found.seconds:.1f} s): {escape(str(facets))}", highlight=False)
     record = {"case_id": f"search/seed-{args.seed}", "family": "search",
               "original": {v: K.facet_labels() for v, K in found.original.items()},
-              "original_sides": [], "complexes": facets, "sides": found.sides,
+              "original_sides": found.original_sides, "complexes": facets, "sides": found.sides,
               "witness": found.witness, "evidence": found.evidence, "steps": found.steps,
-              "evaluations": found.examples, "minimal": True}
+              "evaluations": found.evaluations, "minimal": found.minimal_shown}
     digest = hashlib.sha256(json.dumps(facets, sort_keys=True, default=str).encode()).hexdigest()
-    result = ClaimResult(claim, {"fails": 1}, found.examples, digest, found.seconds,
+    # the certificate certifies one case: the complex the search found, shrunk by our moves
+    from .run.store import OUTCOMES
+    outcomes = dict({o: 0 for o in OUTCOMES}, fails=1)
+    result = ClaimResult(claim, outcomes, 1, digest, found.seconds,
                          claim.expect == "fails", "fails", record)
     run = SimpleNamespace(claims=[result], engine="search", workers=1,
                           run_id=f"search-seed-{args.seed}")

@@ -47,6 +47,9 @@ class Found:
     evidence: str
     examples: int
     seconds: float
+    original_sides: list[str] = ()    # the two sides of the statement on the original
+    evaluations: int = 0              # evaluations our shrinker made
+    minimal_shown: bool = True        # False if the shrinker's budget ran out
 
 
 def _strategy(max_vertices: int, max_dim: int):
@@ -91,5 +94,7 @@ def search(claim: Claim, seconds: float = 60.0, seed: int = 0, max_vertices: int
         original = smallest     # time ran out while Hypothesis was still shrinking
     shrunk = shrink(claim, original, limits)
     outcome = evaluate_claim(claim.statement, shrunk.env, Context(limits))
+    before = evaluate_claim(claim.statement, original, Context(limits))
     return Found(original, shrunk.env, shrunk.steps, outcome.sides, outcome.witness,
-                 outcome.evidence, examples, time.monotonic() - start)
+                 outcome.evidence, examples, time.monotonic() - start, list(before.sides),
+                 shrunk.evaluations, shrunk.complete)
