@@ -132,7 +132,9 @@ def test_energy_explorer_writes_diagram_and_exact_facts(tmp_path):
     assert result.returncode == 0, result.stderr
     out = " ".join(result.stdout.split())
     assert "uniform measure critical for every T: no" in out
-    assert "T = 0: minimum of U = -1 at" in out
+    # three minimisers, each a probability measure (a point mass), not one measure of mass 3
+    assert ("T = 0: minimum of U = -1, attained by 3 probability measures: p = δ[2, 3]; "
+            "p = δ[1, 2]; p = δ[2]") in out
     assert (tmp_path / "energy-path3.png").stat().st_size > 0
     assert (tmp_path / "energy-path3.csv").read_text().count("\n") > 12
     bad = run("energy", str(path), "--temperatures", "2:x")
@@ -157,3 +159,15 @@ def test_a_search_certificate_is_checked_from_its_recorded_original(tmp_path):
     checked = run("check", str(path))
     assert checked.returncode == 1
     assert "NOT verified" in checked.stdout
+
+
+def test_list_keeps_sources_whole_and_titles_in_prose(capsys):
+    # common practice, no source: a source is never cut mid-word, and the recorded
+    # entries carry prose titles (the reference data's titles, ../shared/data)
+    from verifier.families import catalog
+    assert main(["show", "--list"]) == 0
+    tokens = set(capsys.readouterr().out.replace("│", " ").split())
+    for name in catalog.recorded_names():
+        entry = catalog.entry(name)
+        assert set(entry["source"].split()) <= tokens, name
+        assert "_" not in entry["title"], entry["title"]

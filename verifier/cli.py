@@ -137,7 +137,7 @@ def cmd_show(args, console: Console) -> int:
         table.add_column("source")
         for name in catalog.names():
             e = catalog.entry(name)
-            table.add_row(name, e.get("title", ""), e.get("source", "")[:70])
+            table.add_row(name, e.get("title", ""), e.get("source", ""))
         for pattern in catalog.patterns():
             table.add_row(pattern, "(family of constructions)", "")
         console.print(table)
@@ -589,6 +589,16 @@ def cmd_search(args, console: Console) -> int:
     return 0 if claim.expect == "fails" else 1
 
 
+def _measure_text(K: Complex, p) -> str:
+    """A probability measure on the simplices, as mathematicians write it: a point mass
+    ``p = δ[2, 3]``, otherwise ``p = 1/2 δ[1] + 1/2 δ[2]``."""
+    names = [list(K.label_of(s)) for s in K.simplices]
+    atoms = [(names[i], x) for i, x in enumerate(p) if x]
+    if len(atoms) == 1:
+        return f"p = δ{atoms[0][0]}"
+    return "p = " + " + ".join(f"{x} δ{name}" for name, x in atoms)
+
+
 def cmd_summary(args, console: Console) -> int:
     from .run.store import Store, StoreError
 
@@ -689,10 +699,10 @@ def cmd_energy(args, console: Console) -> int:
                   "[dim](exact, from the row sums of g)[/dim]", highlight=False)
     if len(K.simplices) <= 12:
         zero = energy.minimisers_at_zero_temperature(V)
-        names = [list(K.label_of(s)) for s in K.simplices]
-        shown = "; ".join(", ".join(f"{names[i]}: {x}" for i, x in enumerate(p) if x)
-                          for p in zero.minimisers)
-        console.print(f"  T = 0: minimum of U = {zero.value} at {escape(shown)} "
+        shown = "; ".join(_measure_text(K, p) for p in zero.minimisers)
+        count = len(zero.minimisers)
+        console.print(f"  T = 0: minimum of U = {zero.value}, attained by {count} probability "
+                      f"measure{'s' if count != 1 else ''}: {escape(shown)} "
                       "[dim](exact, over all faces of the simplex)[/dim]", highlight=False)
     for b in energy.bifurcations(branches):
         console.print(f"  bifurcation near T = {b.T:.4g} ({escape(b.what)}: {escape(b.detail)}) "
