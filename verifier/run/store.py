@@ -119,6 +119,10 @@ def verdict_of(counts: dict, expect: str) -> tuple[bool, str]:
     return (failing, "fails, as expected" if failing else (
         open_word if unsettled else "holds, expected to fail"))
 
+# families whose cases are every complex (or graph) up to a size, so that the smallest
+# failing case among their cases is the smallest failing case of the family
+EXHAUSTIVE = ("all-complexes", "graphs")
+
 SCHEMA = """
 CREATE TABLE IF NOT EXISTS runs (
     run_id     TEXT PRIMARY KEY,
@@ -175,6 +179,9 @@ class Store:
             run_columns = {row[1] for row in self.db.execute("PRAGMA table_info(runs)")}
             if "command" not in run_columns:     # a store written before commands
                 self.db.execute("ALTER TABLE runs ADD COLUMN command TEXT")
+            if not self._has_column("counterexamples", "readable"):
+                # a store written before relabelled and recognised counterexamples
+                self.db.execute("ALTER TABLE counterexamples ADD COLUMN readable TEXT")
             self.db.commit()
         except sqlite3.Error as error:
             self.db.close()
@@ -364,11 +371,54 @@ class Store:
             "SELECT DISTINCT claim FROM cases WHERE run_id = ? ORDER BY claim", (run_id,))]
 
     def save_counterexample(self, run_id: str, claim: str, case_id: str, record: dict):
-        self.db.execute("INSERT OR REPLACE INTO counterexamples VALUES (?,?,?,?)",
-                        (run_id, claim, case_id, json.dumps(record, sort_keys=True)))
+        """Store a minimal counterexample with its readable form (vertices 1..n, the map to
+        the original labels, the catalog names it is isomorphic to); the readable form is
+        also added to ``record`` under "readable"."""
+        from .readable import readable
+        text = json.dumps({k: v for k, v in record.items() if k != "readable"}, sort_keys=True)
+        record["readable"] = readable(record.get("complexes") or {})
+        self.db.execute("INSERT OR REPLACE INTO counterexamples (run_id, claim, case_id, record, "
+                        "readable) VALUES (?,?,?,?,?)",
+                        (run_id, claim, case_id, text,
+                         json.dumps(record["readable"], sort_keys=True)))
         self.db.commit()
 
     def counterexample(self, run_id: str, claim: str) -> dict | None:
-        row = self.db.execute("SELECT record FROM counterexamples WHERE run_id = ? AND claim = ?",
-                              (run_id, claim)).fetchone()
-        return json.loads(row[0]) if row else None
+        """The stored counterexample with its readable form ("readable"; computed when an
+        older store has none)."""
+        column = "readable" if self._has_column("counterexamples", "readable") else "NULL"
+        row = self.db.execute(f"SELECT record, {column} FROM counterexamples "
+                              "WHERE run_id = ? AND claim = ?", (run_id, claim)).fetchone()
+        if not row:
+            return None
+        record = json.loads(row[0])
+        if row[1]:
+            record["readable"] = json.loads(row[1])
+        else:
+            from .readable import readable
+            record["readable"] = readable(record.get("complexes") or {})
+        return record
+
+    def smallest_failing(self, run_id: str, claim: str,
+                         families: tuple[str, ...] = EXHAUSTIVE) -> dict | None:
+        """The failing case of the exhaustive families (all of each family's cases are
+        evaluated) that is smallest by (vertices, simplices), summed over the claim's
+        variables, then by case id: {"case_id", "family", "vertices", "simplices"}; None
+        without such a case or without recorded sizes."""
+        if not self._has_column("cases", "sizes"):
+            return None
+        rows = self.db.execute(
+            f"SELECT case_id, family, sizes FROM cases WHERE run_id = ? AND claim = ? AND "
+            f"outcome = 'fails' AND sizes IS NOT NULL AND family IN "
+            f"({', '.join('?' * len(families))})", (run_id, claim, *families))
+        best = None
+        for case_id, family, sizes in rows:
+            counted = json.loads(sizes).values()
+            key = (sum(v for v, _ in counted), sum(s for _, s in counted), case_id)
+            if best is None or key < best[0]:
+                best = (key, family)
+        if best is None:
+            return None
+        (vertices, simplices, case_id), family = best
+        return {"case_id": case_id, "family": family, "vertices": vertices,
+                "simplices": simplices}
