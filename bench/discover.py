@@ -14,7 +14,6 @@ the same matrix, in the same run (best of 9 each).  Both must give the same rati
 from __future__ import annotations
 
 import sys
-import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -23,6 +22,7 @@ sys.path.insert(0, str(ROOT))
 from verifier.discover import find_relations, value_table  # noqa: E402
 from verifier.discover.values import Expression  # noqa: E402
 from verifier.families import make_family  # noqa: E402
+from bench.timing import best_of  # noqa: E402
 
 EXPRESSIONS = ([f"(f_vector(K)[{k}] if dim(K) >= {k} else 0)" for k in range(4)]
                + [f"betti(K, {k})" for k in range(3)]
@@ -30,22 +30,13 @@ EXPRESSIONS = ([f"(f_vector(K)[{k}] if dim(K) >= {k} else 0)" for k in range(4)]
                   "negative(connection(K))"])
 
 
-def _best(repeats: int, work):
-    best, result = float("inf"), None
-    for _ in range(repeats):
-        start = time.perf_counter()
-        result = work()
-        best = min(best, time.perf_counter() - start)
-    return best, result
-
-
 def bench_discover_atlas() -> dict:
     import sympy
     family = make_family({"family": "all-complexes", "max_vertices": 6})
     table = value_table([family], [Expression(t, t) for t in EXPRESSIONS], workers=2)
-    relations_s, result = _best(9, lambda: find_relations(table))
+    relations_s, result = best_of(9, lambda: find_relations(table))
     matrix = sympy.Matrix([[1] + row for row in table.values])
-    baseline_s, kernel = _best(9, matrix.nullspace)
+    baseline_s, kernel = best_of(9, matrix.nullspace)
     ours = sympy.Matrix([[r.coefficients.get(k, 0) for k in ["1"] + EXPRESSIONS]
                          for r in result.relations])
     theirs = sympy.Matrix.hstack(*kernel).T if kernel else sympy.zeros(0, len(EXPRESSIONS) + 1)

@@ -23,19 +23,7 @@ from verifier import invariants as inv  # noqa: E402
 from verifier import operations as ops  # noqa: E402
 from verifier.complex import Complex  # noqa: E402
 from verifier.families import catalog  # noqa: E402
-
-
-def _best(repeats: int, work):
-    best, result = float("inf"), None
-    for _ in range(repeats):
-        start = time.perf_counter()
-        result = work()
-        best = min(best, time.perf_counter() - start)
-    return best, result
-
-
-def _fresh(K: Complex) -> Complex:
-    return Complex(K.labels, K.simplices)
+from bench.timing import best_of, fresh  # noqa: E402
 
 
 def _gudhi_tree(K: Complex):
@@ -69,7 +57,7 @@ def _warm_up():
 
 def _versus_gudhi(K: Complex, expected, repeats: int) -> dict:
     _warm_up()
-    ours_s, groups = _best(repeats, lambda: inv.homology(_fresh(K)))
+    ours_s, groups = best_of(repeats, lambda: inv.homology(fresh(K)))
     assert groups == expected, (groups, expected)
     baseline_s, build_s, gudhi_z2 = _gudhi_betti(K, repeats)
     assert inv.betti(K, p=2) == gudhi_z2[:K.dim + 1], (inv.betti(K, p=2), gudhi_z2)

@@ -36,24 +36,10 @@ from verifier.exact import Matrix, signature  # noqa: E402
 from verifier.exact import charpoly_is_reciprocal  # noqa: E402
 from verifier.families import catalog  # noqa: E402
 from bench.homology import BENCHMARKS as HOMOLOGY_BENCHMARKS  # noqa: E402
+from bench.timing import best_of, fresh  # noqa: E402
 from bench.discover import BENCHMARKS as DISCOVER_BENCHMARKS  # noqa: E402
 
 RESULTS = ROOT / "bench" / "results.json"
-
-
-def best_of(repeats: int, work):
-    """(best wall time, last result) of `repeats` calls of work()."""
-    best, result = float("inf"), None
-    for _ in range(repeats):
-        start = time.perf_counter()
-        result = work()
-        best = min(best, time.perf_counter() - start)
-    return best, result
-
-
-def fresh(K: Complex) -> Complex:
-    """The same complex with empty caches, so that every timing starts from scratch."""
-    return Complex(K.labels, K.simplices)
 
 
 def refined_torus(times: int) -> Complex:

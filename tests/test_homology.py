@@ -412,3 +412,32 @@ def test_show_prints_integer_homology_as_mathematicians_write_it(capsys):
     out = capsys.readouterr().out
     assert "H_0 = Z,  H_1 = Z + Z/2,  H_2 = 0" in out
     assert "H_0 = Z,  H_1 = Z/2,  H_2 = 0,  H_3 = Z" in out
+
+
+def test_the_exact_python_flow_agrees_with_the_compiled_flow():
+    # the big-integer fallback (used when a coefficient would leave int64) must give the
+    # same Morse boundary as the compiled kernel (common practice, no source)
+    import numpy as np
+
+    from verifier.exact.morse import _flow_exact
+
+    for K in random_complexes(40, seed=8, max_vertices=9, max_dim=4, max_facets=8) + \
+            [catalog.complex("projective-space-3-11"), catalog.complex("dunce-hat-8")]:
+        R = morse_reduction(K)
+        n = len(K.simplices)
+        counts = np.where(R.dims > 0, R.dims + 1, 0)
+        face_ptr = np.concatenate([[0], np.cumsum(counts)])
+        face_idx = np.concatenate([K.face_positions(k).ravel() for k in range(1, K.dim + 1)]
+                                  or [np.zeros(0, dtype=np.int64)])
+        face_sgn = np.concatenate([np.tile(1 - 2 * (np.arange(k + 1) % 2), K.f_vector[k])
+                                   for k in range(1, K.dim + 1)] or [np.zeros(0, dtype=np.int64)])
+        critical_index = np.full(n, -1)
+        for k in range(K.dim + 1):
+            cells = R.critical_of_dim(k)
+            critical_index[cells] = np.arange(len(cells))
+        for k, entries in R.boundaries.items():
+            for j, cell in enumerate(R.critical_of_dim(k)):
+                exact_column = _flow_exact(cell, face_ptr, face_idx, face_sgn, R.mate, R.time,
+                                           R.dims, critical_index)
+                compiled = {i: v for (i, jj), v in entries.items() if jj == j}
+                assert exact_column == compiled

@@ -22,8 +22,9 @@ it is acyclic: along a gradient path the removal times strictly decrease (the ot
 of b were removed before a).  The flow uses that order too (a heap by removal time), so
 each cell is substituted at most once per critical cell.
 
-The kernels are compiled with numba (integer arithmetic only, overflow-checked: a
-coefficient that would leave int64 sends that cell to an exact Python big-integer flow).
+The kernels (:mod:`verifier.exact.morse_kernels`) are compiled with numba (integer
+arithmetic only, overflow-checked: a coefficient that would leave int64 sends that cell
+to an exact Python big-integer flow).
 
 >>> faces = [[], [], [], [1, 0], [2, 0], [2, 1], [5, 4, 3]]   # a filled triangle
 >>> signs = [[], [], [], [1, -1], [1, -1], [1, -1], [1, -1, 1]]
@@ -47,8 +48,6 @@ from dataclasses import dataclass
 import numpy as np
 
 __all__ = ["MorseReduction", "reduce_chain_complex", "reduce_face_table"]
-
-_SAFE = 1 << 62
 
 
 @dataclass(frozen=True)
@@ -79,175 +78,10 @@ class MorseReduction:
 
 # ------------------------------------------------------------------ compiled kernels
 def _kernels():
-    """Compile (or load from numba's cache) the two kernels; imported lazily so that code
-    which never reduces a chain complex does not pay for loading numba."""
-    global _KERNELS
-    if _KERNELS is not None:
-        return _KERNELS
-    from numba import njit
-
-    @njit(cache=True)
-    def coreduce(n, face_ptr, face_idx, cof_ptr, cof_idx):
-        alive = np.ones(n, np.bool_)
-        count = np.empty(n, np.int64)
-        for x in range(n):
-            count[x] = face_ptr[x + 1] - face_ptr[x]
-        mate = np.full(n, -1, np.int64)
-        time = np.full(n, -1, np.int64)
-        queue = np.empty(n + 1, np.int64)
-        head = 0
-        tail = 0
-        t = 0
-        seed = 0
-        while True:
-            while head < tail:
-                y = queue[head]
-                head += 1
-                if not alive[y] or count[y] != 1:
-                    continue
-                a = -1
-                for q in range(face_ptr[y], face_ptr[y + 1]):
-                    if alive[face_idx[q]]:
-                        a = face_idx[q]
-                        break
-                mate[a] = y
-                mate[y] = a
-                for x in (a, y):
-                    alive[x] = False
-                    time[x] = t
-                    t += 1
-                    for q in range(cof_ptr[x], cof_ptr[x + 1]):
-                        z = cof_idx[q]
-                        if alive[z]:
-                            count[z] -= 1
-                            if count[z] == 1:
-                                queue[tail] = z
-                                tail += 1
-            while seed < n and not alive[seed]:
-                seed += 1
-            if seed == n:
-                break
-            x = seed                       # least dimension alive: all its faces are gone
-            alive[x] = False
-            time[x] = t
-            t += 1
-            for q in range(cof_ptr[x], cof_ptr[x + 1]):
-                z = cof_idx[q]
-                if alive[z]:
-                    count[z] -= 1
-                    if count[z] == 1:
-                        queue[tail] = z
-                        tail += 1
-        return mate, time
-
-    @njit(cache=True)
-    def flow(cells, face_ptr, face_idx, face_sgn, mate, time, dims, critical_index):
-        """Morse boundaries of the given critical cells (all of one dimension k).
-
-        Returns (rows, cols, values, overflowed): rows are critical_index of the
-        critical (k-1)-cells, cols positions in ``cells``; ``overflowed`` lists the
-        positions in ``cells`` whose coefficients would have left the safe range."""
-        n = len(mate)
-        coef = np.zeros(n, np.int64)
-        queued = np.zeros(n, np.bool_)
-        heap = np.empty(n + 1, np.int64)
-        rows = []
-        cols = []
-        values = []
-        overflowed = []
-        limit = np.int64(1) << np.int64(62)
-        for j in range(len(cells)):
-            s = cells[j]
-            size = 0
-            bad = False
-            for q in range(face_ptr[s], face_ptr[s + 1]):
-                a = face_idx[q]
-                coef[a] += face_sgn[q]
-                if not queued[a]:
-                    queued[a] = True
-                    # push a (max-heap on time)
-                    i = size
-                    size += 1
-                    while i > 0:
-                        parent = (i - 1) // 2
-                        if time[heap[parent]] >= time[a]:
-                            break
-                        heap[i] = heap[parent]
-                        i = parent
-                    heap[i] = a
-            while size > 0:
-                a = heap[0]
-                size -= 1
-                last = heap[size]
-                i = 0
-                while True:
-                    child = 2 * i + 1
-                    if child >= size:
-                        break
-                    if child + 1 < size and time[heap[child + 1]] > time[heap[child]]:
-                        child += 1
-                    if time[heap[child]] <= time[last]:
-                        break
-                    heap[i] = heap[child]
-                    i = child
-                if size > 0:
-                    heap[i] = last
-                queued[a] = False
-                c = coef[a]
-                coef[a] = 0
-                if c == 0 or bad:
-                    continue
-                if critical_index[a] >= 0:
-                    rows.append(critical_index[a])
-                    cols.append(j)
-                    values.append(c)
-                    continue
-                b = mate[a]
-                if dims[b] < dims[a]:          # a is the upper cell of its pair: dropped
-                    continue
-                e = 0
-                for q in range(face_ptr[b], face_ptr[b + 1]):
-                    if face_idx[q] == a:
-                        e = face_sgn[q]
-                for q in range(face_ptr[b], face_ptr[b + 1]):
-                    a2 = face_idx[q]
-                    if a2 == a:
-                        continue
-                    delta = -c * e * face_sgn[q]
-                    if abs(coef[a2]) >= limit - abs(delta) or abs(c) >= limit:
-                        bad = True
-                        break
-                    coef[a2] += delta
-                    if not queued[a2]:
-                        queued[a2] = True
-                        i = size
-                        size += 1
-                        while i > 0:
-                            parent = (i - 1) // 2
-                            if time[heap[parent]] >= time[a2]:
-                                break
-                            heap[i] = heap[parent]
-                            i = parent
-                        heap[i] = a2
-            if bad:
-                overflowed.append(j)
-                # discard this cell's partial result
-                k = len(cols) - 1
-                while k >= 0 and cols[k] == j:
-                    rows.pop()
-                    cols.pop()
-                    values.pop()
-                    k -= 1
-                for q in range(n):
-                    coef[q] = 0
-                    queued[q] = False
-        return rows, cols, values, overflowed
-
-    _KERNELS = (coreduce, flow)
-    return _KERNELS
-
-
-_KERNELS = None
+    """The two compiled kernels of :mod:`verifier.exact.morse_kernels`, imported lazily so
+    that code which never reduces a chain complex does not pay for loading numba."""
+    from .morse_kernels import coreduce, flow
+    return coreduce, flow
 
 
 # ------------------------------------------------------------------------ the API
