@@ -38,6 +38,7 @@ from rich.table import Table
 
 from . import __version__
 from .complex import Complex
+from .run.readable import describe as describe_readable
 from .run.store import UNSETTLED
 
 __all__ = ["main", "load_complex", "UserError"]
@@ -291,6 +292,14 @@ def cmd_run(args, console: Console) -> int:
             console.print(f"[bold]{r.claim.name}[/bold]: minimal counterexample {facets}"
                           f" (from case {escape(c['case_id'])}, {len(c['steps'])} shrinking "
                           "steps)", highlight=False)
+            for v, entry in (c.get("readable") or {}).items():
+                console.print(f"    relabelled: {v} = {escape(describe_readable(entry))}",
+                              highlight=False)
+            smallest = _smallest_failing(result, r.claim.name)
+            if smallest:
+                console.print(f"    smallest failing case of the exhaustive families: "
+                              f"{escape(smallest['case_id'])} ({smallest['vertices']} vertices, "
+                              f"{smallest['simplices']} simplices)", highlight=False)
             sides = c["sides"]
             if len(sides) == 2 and len(sides[0]) + len(sides[1]) < 160:
                 console.print(f"    {escape(sides[0])}  vs  {escape(sides[1])}", highlight=False)
@@ -307,6 +316,19 @@ def cmd_run(args, console: Console) -> int:
         console.print(f"store: {result.store}; certificates: {len(written)} written to "
                       f"{args.certificates}; wall time {result.seconds:.1f} s", highlight=False)
     return 0 if result.ok else 1
+
+
+def _smallest_failing(result, claim: str) -> dict | None:
+    """The smallest failing case of the run's exhaustive families for a claim (store read)."""
+    from .run.store import Store, StoreError
+    try:
+        store = Store.read_only(result.store)
+    except StoreError:
+        return None
+    try:
+        return store.smallest_failing(result.run_id, claim)
+    finally:
+        store.close()
 
 
 def _again_selection(args) -> dict:
@@ -645,12 +667,21 @@ def cmd_report(args, console: Console) -> int:
 
     if not Path(args.store).is_file():
         raise UserError(f"{args.store}: no such store (run `verifier run` first)")
+    runs = [r for given in (args.run or []) for r in given.split(",") if r]
+    if runs and args.every_claim:
+        raise UserError("report: --run and --every-claim choose the scope in two ways; "
+                        "give one")
+    scope = dict(run_id=runs[0] if len(runs) == 1 else None,
+                 runs=runs if len(runs) > 1 else None, every_claim=args.every_claim)
     try:
-        written = write_report(args.store, args.out, run_id=args.run,
-                               certificates_dir=args.certificates)
+        written = write_report(args.store, args.out, certificates_dir=args.certificates,
+                               **scope)
         if args.latex:
-            written.append(write_latex(args.store, args.latex, run_id=args.run,
-                                       certificates_dir=args.certificates))
+            written.append(write_latex(args.store, args.latex,
+                                       certificates_dir=args.certificates, **scope))
+        if args.latex_fragment:
+            written.append(write_latex(args.store, args.latex_fragment, fragment=True,
+                                       certificates_dir=args.certificates, **scope))
     except ReportError as error:
         raise UserError(f"report: {error}") from None
     for path in written:
@@ -910,9 +941,17 @@ def build_parser() -> argparse.ArgumentParser:
     report.add_argument("--out", default="reports", metavar="DIR",
                         help="folder for report.md, report.html and the pictures "
                              "(default: reports)")
-    report.add_argument("--run", default=None, help="run id (default: the latest run)")
+    report.add_argument("--run", default=None, action="append", metavar="RUN",
+                        help="run id (default: the latest run); repeat it, or separate ids "
+                             "with commas, for one report of several runs")
+    report.add_argument("--every-claim", action="store_true",
+                        help="report the latest verdict of every claim in the store (each "
+                             "from the latest run that evaluated it)")
     report.add_argument("--latex", default=None, metavar="FILE",
                         help="also write a LaTeX document of the results to FILE")
+    report.add_argument("--latex-fragment", default=None, metavar="FILE",
+                        help="also write the results as a LaTeX fragment to \\input into a "
+                             "paper (its preamble loads tikz, longtable and array)")
     report.add_argument("--certificates", default="reports/certificates", metavar="DIR",
                         help="folder holding the run's certificates")
     report.set_defaults(handler=cmd_report)

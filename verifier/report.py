@@ -50,7 +50,7 @@ from .run.store import OUTCOMES, UNSETTLED, verdict_of
 
 __all__ = ["ReportError", "RunData", "ClaimData", "FamilyData", "CAUTION", "collect",
            "write_report", "write_latex", "counterexample_drawing", "is_spectral", "is_squared",
-           "latex_escape", "recheck_command"]
+           "latex_escape", "recheck_command", "provenance"]
 
 CAUTION = "Checking an identity on finitely many complexes is evidence, not proof"
 
@@ -100,17 +100,23 @@ class ClaimData:
     spectral: bool
     squared: bool
     unsettled: list = field(default_factory=list)   # first few cases that settle nothing
+    run_id: str = ""                   # the run this claim's verdict comes from
+    certificate_sha256: str | None = None
+    precision: list = field(default_factory=list)   # bits of the certified values recorded
 
 
 @dataclass
 class RunData:
-    """A run: its id, times, engine and claims."""
+    """A run (or several: see :func:`collect`): ids, times, engine, claims, provenance."""
     store: str
     run_id: str
     started: float
     finished: float | None
     engine: str
     claims: list[ClaimData]
+    runs: list[dict] = field(default_factory=list)   # run_id, started, finished, engine,
+                                                     # command, file_sha256 of each run
+    scope: str = ""                                  # what the report covers, in words
 
     def numbers(self) -> dict:
         """The report's numbers as plain data (what the HTML page embeds as JSON)."""
@@ -392,13 +398,17 @@ def _example_store(folder) -> Path:
 
 
 def collect(store_path, run_id: str | None = None,
-            certificates_dir: str | Path = "reports/certificates") -> RunData:
+            certificates_dir: str | Path = "reports/certificates",
+            runs: list[str] | None = None, every_claim: bool = False) -> RunData:
     """Everything a report shows about one run, read from the store and the certificates.
 
     Parameters:
         store_path: the SQLite store written by ``verifier run``.
         run_id: the run (default: the latest one started).
         certificates_dir: where ``verifier run`` wrote the certificates.
+        runs: several run ids: the report covers each of them, claims in run order.
+        every_claim: the latest verdict of every claim in the store: for each claim
+            name, the latest started run that holds cases of it.
 
     Returns: a :class:`RunData` (claims in the order of the run's request).
 
@@ -416,6 +426,8 @@ def collect(store_path, run_id: str | None = None,
 
     Notes: one grouped query per claim; cases of several variables are read row by row.
     """
+    if runs or every_claim:
+        return _collect_many(store_path, runs or [], every_claim, certificates_dir)
     db = _open(store_path)
     try:
         if run_id is None:
@@ -423,8 +435,9 @@ def collect(store_path, run_id: str | None = None,
             if row is None:
                 raise ReportError(f"{store_path}: the store holds no run")
             run_id = row[0]
-        row = db.execute("SELECT request, started, finished, engine FROM runs WHERE run_id = ?",
-                         (run_id,)).fetchone()
+        command = "command" if _column(db, "runs", "command") else "NULL"
+        row = db.execute(f"SELECT request, started, finished, engine, {command} FROM runs "
+                         "WHERE run_id = ?", (run_id,)).fetchone()
         if row is None:
             known = [r[0] for r in db.execute(
                 "SELECT run_id FROM runs ORDER BY started DESC LIMIT 3")]
@@ -456,6 +469,9 @@ def collect(store_path, run_id: str | None = None,
                                     f"run_id = ? AND claim = ? AND outcome IN "
                                     f"({', '.join('?' * len(UNSETTLED))}) ORDER BY case_id "
                                     "LIMIT 5", (run_id, name, *UNSETTLED))]
+            certified = [r[0] for r in db.execute(
+                "SELECT certified FROM cases WHERE run_id = ? AND claim = ? AND certified IS "
+                "NOT NULL", (run_id, name))]
             claims.append(ClaimData(
                 name=name, title=spec.get("title") or name, statement=statement,
                 where=spec.get("where"), expect=spec.get("expect", "holds"),
@@ -465,10 +481,121 @@ def collect(store_path, run_id: str | None = None,
                 certificate=certificate, certificate_note=note,
                 counterexample=json.loads(record[0]) if record else None,
                 spectral=is_spectral(statement), squared=is_squared(statement),
-                unsettled=unsettled))
-        return RunData(str(store_path), run_id, started, finished, engine, claims)
+                unsettled=unsettled, run_id=run_id,
+                certificate_sha256=_sha256_file(certificate)
+                if note.endswith("of this run") else None,
+                precision=_precisions(certified)))
+        described = {"run_id": run_id, "started": started, "finished": finished,
+                     "engine": engine, "command": row[4],
+                     "file_sha256": request.get("file_sha256") or {}}
+        return RunData(str(store_path), run_id, started, finished, engine, claims,
+                       runs=[described], scope=f"run {run_id}")
     finally:
         db.close()
+
+
+def _column(db, table: str, column: str) -> bool:
+    return any(r[1] == column for r in db.execute(f"PRAGMA table_info({table})"))
+
+
+def _sha256_file(path) -> str | None:
+    import hashlib
+    try:
+        return hashlib.sha256(Path(path).read_bytes()).hexdigest()
+    except (OSError, TypeError):
+        return None
+
+
+def _precisions(certified_columns: list[str]) -> list[int]:
+    """The precisions (bits) named by the certified values of a claim's cases."""
+    bits = set()
+    for text in certified_columns:
+        for entry in json.loads(text) if text else []:
+            bits.update(int(b) for b in re.findall(r"@(\d+) bits", str(entry.get("value", ""))))
+    return sorted(bits)
+
+
+def _collect_many(store_path, runs: list[str], every_claim: bool,
+                  certificates_dir) -> RunData:
+    """Several runs in one report, or the latest verdict of every claim (see collect)."""
+    db = _open(store_path)
+    try:
+        ordered = [r[0] for r in db.execute("SELECT run_id FROM runs ORDER BY started DESC")]
+        if not ordered:
+            raise ReportError(f"{store_path}: the store holds no run")
+        for run_id in runs:
+            if run_id not in ordered:
+                raise ReportError(f"{store_path}: no run {run_id!r} (latest: "
+                                  f"{', '.join(ordered[:3])})")
+        latest_of = {}
+        if every_claim:
+            for run_id in ordered:
+                for (name,) in db.execute("SELECT DISTINCT claim FROM cases WHERE run_id = ?",
+                                          (run_id,)):
+                    latest_of.setdefault(name, run_id)
+    finally:
+        db.close()
+    chosen = list(dict.fromkeys(runs)) if runs else [
+        r for r in reversed(ordered) if r in latest_of.values()]
+    parts = [collect(store_path, r, certificates_dir) for r in chosen]
+    claims = [c for part in parts for c in part.claims
+              if not every_claim or latest_of.get(c.name) == part.run_id]
+    scope = (f"the latest verdict of each of the {len(claims)} claims in the store"
+             if every_claim else f"runs {', '.join(chosen)}")
+    return RunData(str(store_path), ", ".join(chosen), min(p.started for p in parts),
+                   max((p.finished for p in parts), default=None, key=lambda f: f or 0),
+                   ", ".join(dict.fromkeys(p.engine for p in parts)), claims,
+                   runs=[r for p in parts for r in p.runs], scope=scope)
+
+
+def provenance(run: RunData) -> list[tuple[str, str]]:
+    """The provenance lines of a report: (what, value) pairs.
+
+    The versions and the machine are those of the report's own environment, and, for
+    each run with a certificate, the versions the certificate recorded; then each run's
+    command line, each claim file's SHA-256, each certificate's SHA-256 and the precision
+    of certified values."""
+    import platform
+    from importlib import metadata
+
+    def version(package: str) -> str:
+        try:
+            return metadata.version(package)
+        except metadata.PackageNotFoundError:
+            return "not installed"
+    rows = [("report written with", f"simplicial-verifier {version('simplicial-verifier')}, "
+             f"python-flint {version('python-flint')}, sympy {version('sympy')}, "
+             f"Python {platform.python_version()}"),
+            ("machine", f"{platform.node() or '?'} ({platform.platform()}, "
+             f"{platform.machine() or '?'})")]
+    for r in run.runs:
+        rows.append((f"run {r['run_id']}", f"engine {r['engine']}; command: "
+                     + (r.get("command") or "not recorded (a store written before commands)")))
+        for file, digest in sorted((r.get("file_sha256") or {}).items()):
+            rows.append((f"claim file {file}", f"SHA-256 {digest}"))
+    seen = set()
+    for c in run.claims:
+        if c.certificate and c.certificate not in seen:
+            seen.add(c.certificate)
+            recorded = _certificate_versions(c.certificate) if c.certificate_sha256 else ""
+            rows.append((f"certificate {c.certificate}",
+                         f"SHA-256 {c.certificate_sha256}" + (f"; run with {recorded}"
+                                                              if recorded else "")
+                         if c.certificate_sha256 else c.certificate_note))
+    for c in run.claims:
+        rows.append((f"precision of {c.name}", ("certified values at " + ", ".join(
+            f"{b} bits" for b in c.precision)) if c.precision else
+            "no certified values (every value exact)"))
+    return rows
+
+
+def _certificate_versions(path) -> str:
+    try:
+        versions = json.loads(Path(path).read_text(encoding="utf-8")).get("versions") or {}
+    except (OSError, ValueError):
+        return ""
+    names = ("simplicial-verifier", "python-flint", "sympy", "python")
+    return ", ".join(f"{n} {versions[n]}" for n in names if n in versions)
 
 
 # ------------------------------------------------------------------- pictures
@@ -553,7 +680,8 @@ def _representative(store_path, run: RunData, claim: ClaimData):
     try:
         ids = [r[0] for r in db.execute(
             "SELECT case_id FROM cases WHERE run_id = ? AND claim = ? AND outcome = 'holds' "
-            "AND instr(case_id, ' & ') = 0 ORDER BY case_id", (run.run_id, claim.name))]
+            "AND instr(case_id, ' & ') = 0 ORDER BY case_id", (claim.run_id or run.run_id,
+                                                                  claim.name))]
     finally:
         db.close()
     if not ids:
@@ -667,7 +795,7 @@ def _caution(run: RunData) -> str:
 
 # ------------------------------------------------------------------- Markdown
 def _markdown(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
-    lines = [f"# Verifier report: run {run.run_id}", "",
+    lines = [f"# Verifier report: {run.scope or 'run ' + run.run_id}", "",
              f"Store `{run.store}`; engine {run.engine}; started {_when(run.started)}, "
              f"finished {_when(run.finished)}.", "", f"> {_caution(run)}", "",
              "## Summary", "",
@@ -676,11 +804,14 @@ def _markdown(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
     for c in run.claims:
         lines.append(f"| {c.name} | {c.expect} | {c.verdict} | {c.cases} | " + " | ".join(
             str(c.counts[o]) for o in _OUTCOMES) + f" | {c.seconds:.2f} |")
+    several = len(run.runs) > 1
     for c in run.claims:
-        lines += ["", f"## {c.name}: {_md(c.title)}", "",
-                  f"- statement: `{c.statement}`"]
+        lines += ["", f"## {c.name}: {_md(c.title)}", ""]
+        if several:
+            lines.append(f"- run: `{c.run_id}`")
+        lines += _md_code("statement", c.statement)
         if c.where:
-            lines.append(f"- where: `{c.where}`")
+            lines += _md_code("where", c.where)
         lines += [f"- source: {_md(c.source) or 'not given'}",
                   f"- expected: {c.expect}; verdict: **{c.verdict}**; evidence: {c.evidence}",
                   f"- time: {_seconds(c.seconds)} summed over {c.cases} cases", "",
@@ -706,6 +837,8 @@ def _markdown(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
             lines += ["", "### Minimal counterexample", ""]
             for v, facets in (record.get("complexes") or {}).items():
                 lines.append(f"- {v} = `{facets}`")
+            for v, entry in _readable(record).items():
+                lines.append(f"- {v} relabelled: {_md(describe_readable(entry))}")
             lines.append(f"- from case `{record.get('case_id')}` ({record.get('family')}), "
                          f"{len(record.get('steps') or [])} shrinking steps, "
                          f"{'minimal' if record.get('minimal') else 'shrinking stopped early'}")
@@ -729,12 +862,38 @@ def _markdown(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
                 lines += ["", f"![{p.caption}]({p.file})", "", f"*{_md(p.caption)}*"]
             else:
                 lines += ["", f"*{_md(p.caption)}*"]
+    lines += ["", "## Provenance", ""] + [f"- {_md(what)}: {_md(value)}"
+                                          for what, value in provenance(run)]
     lines += ["", "---", "", CAUTION + ".", ""]
     return "\n".join(lines)
 
 
 def _md(text: str) -> str:
     return str(text).replace("|", "\\|").replace("\n", " ")
+
+
+def _md_code(label: str, text: str) -> list[str]:
+    """A claim text in Markdown: inline code on one line, a fenced block (indented under
+    its list item) when the text has several lines, so that every line is kept."""
+    text = str(text).strip("\n")
+    if "\n" not in text and "`" not in text:
+        return [f"- {label}: `{text}`"]
+    fence = "~~~~" if "```" in text else "```"
+    return [f"- {label}:", "", f"  {fence}"] + [f"  {line}" for line in text.split("\n")] + [
+        f"  {fence}", ""]
+
+
+def _readable(record: dict) -> dict:
+    """The relabelled form of a counterexample (older stores: computed here)."""
+    if record.get("readable"):
+        return record["readable"]
+    from .run.readable import readable
+    return readable(record.get("complexes") or {})
+
+
+def describe_readable(entry: dict) -> str:
+    from .run.readable import describe
+    return describe(entry)
 
 
 # ----------------------------------------------------------------------- HTML
@@ -782,7 +941,7 @@ def _html(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
            f"<style>{_CSS}</style>"]
     data = json.dumps(run.numbers(), sort_keys=True).replace("</", "<\\/")
     out.append(f'<script type="application/json" id="verifier-report-data">{data}</script>')
-    out += ["</head><body>", f"<h1>Verifier report: run <code>{_h(run.run_id)}</code></h1>",
+    out += ["</head><body>", f"<h1>Verifier report: {_h(run.scope or 'run ' + run.run_id)}</h1>",
             f'<p class="meta">Store <code>{_h(run.store)}</code>; engine {_h(run.engine)}; '
             f"started {_h(_when(run.started))}, finished {_h(_when(run.finished))}.</p>",
             f'<p class="caution">{_h(_caution(run))}</p>',
@@ -798,10 +957,12 @@ def _html(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
     out.append("</tbody></table>")
     for c in run.claims:
         out += [f'<h2 id="claim-{_h(c.name)}">{_h(c.title)}</h2>', "<dl>",
-                f"<dt>claim</dt><dd><code>{_h(c.name)}</code></dd>",
-                f"<dt>statement</dt><dd><code>{_h(c.statement)}</code></dd>"]
+                f"<dt>claim</dt><dd><code>{_h(c.name)}</code></dd>"]
+        if len(run.runs) > 1:
+            out.append(f"<dt>run</dt><dd><code>{_h(c.run_id)}</code></dd>")
+        out.append(f"<dt>statement</dt><dd>{_html_code(c.statement)}</dd>")
         if c.where:
-            out.append(f"<dt>where</dt><dd><code>{_h(c.where)}</code></dd>")
+            out.append(f"<dt>where</dt><dd>{_html_code(c.where)}</dd>")
         out += [f"<dt>source</dt><dd>{_h(c.source or 'not given')}</dd>",
                 f"<dt>expected</dt><dd>{_h(c.expect)}</dd>",
                 f"<dt>verdict</dt><dd>{_verdict_html(c)}</dd>",
@@ -840,6 +1001,9 @@ def _html(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
             out.append('<div class="values">')
             for v, facets in (record.get("complexes") or {}).items():
                 out.append(f"<p><b>{_h(v)}</b> = <code>{_h(facets)}</code></p>")
+            for v, entry in _readable(record).items():
+                out.append(f"<p>{_h(v)} relabelled: <code>"
+                           f"{_h(describe_readable(entry))}</code></p>")
             out.append(f"<p class=\"meta\">from case <code>{_h(record.get('case_id'))}</code> "
                        f"({_h(record.get('family'))}), {len(record.get('steps') or [])} "
                        "shrinking steps, " + ("minimal" if record.get("minimal")
@@ -862,8 +1026,16 @@ def _html(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
         for p in shown:
             if p.kind == "spectrum":
                 out += ["<h3>Spectrum</h3>", _img(p, f"spectrum picture for {c.name}")]
+    out += ["<h2>Provenance</h2>", '<dl class="provenance">'] + [
+        f"<dt>{_h(what)}</dt><dd><code>{_h(value)}</code></dd>"
+        for what, value in provenance(run)] + ["</dl>"]
     out += [f'<p class="caution">{_h(CAUTION)}.</p>', "</body></html>", ""]
     return "\n".join(out)
+
+
+def _html_code(text: str) -> str:
+    text = str(text).strip("\n")
+    return f"<pre>{_h(text)}</pre>" if "\n" in text else f"<code>{_h(text)}</code>"
 
 
 def _verdict_html(c: ClaimData) -> str:
@@ -873,7 +1045,8 @@ def _verdict_html(c: ClaimData) -> str:
 
 # ------------------------------------------------------------------ writing
 def write_report(store_path, out_dir="reports", run_id: str | None = None,
-                 certificates_dir: str | Path = "reports/certificates") -> list[Path]:
+                 certificates_dir: str | Path = "reports/certificates",
+                 runs: list[str] | None = None, every_claim: bool = False) -> list[Path]:
     """Write ``report.md`` and a self-contained ``report.html`` for one run of the store.
 
     The report lists, per claim, its statement, source, families with the cases covered,
@@ -888,6 +1061,8 @@ def write_report(store_path, out_dir="reports", run_id: str | None = None,
         out_dir: the folder to write into (created if missing).
         run_id: the run (default: the latest).
         certificates_dir: the folder ``verifier run`` wrote certificates to.
+        runs, every_claim: the scope: several runs, or the latest verdict of every claim
+            in the store (see :func:`collect`).
 
     Returns: the paths written (report.md, report.html, then the PNG files).
 
@@ -902,7 +1077,7 @@ def write_report(store_path, out_dir="reports", run_id: str | None = None,
     Notes: reads only the store and the certificates folder (see the module docstring);
     about 0.3 s per picture (matplotlib).  Reference: SPEC §9.
     """
-    run = collect(store_path, run_id, certificates_dir)
+    run = collect(store_path, run_id, certificates_dir, runs=runs, every_claim=every_claim)
     pictures = _pictures(store_path, run)
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
@@ -977,24 +1152,31 @@ def _facets_latex(facets) -> str:
                                for f in facets) + r"$\}$"
 
 
-def _latex(run: RunData) -> str:
-    out = [r"\documentclass[10pt]{article}",
-           r"\usepackage{tikz}", r"\usepackage{longtable}",
-           r"\setlength{\textwidth}{16cm}\setlength{\oddsidemargin}{0cm}",
-           r"\setlength{\evensidemargin}{0cm}",
-           r"\begin{document}", "",
-           r"\section*{Results of run \texttt{" + latex_escape(run.run_id) + "}}", "",
+def _latex(run: RunData, fragment: bool = False) -> str:
+    preamble = [r"\documentclass[10pt]{article}",
+                r"\usepackage{tikz}", r"\usepackage{longtable}", r"\usepackage{array}",
+                r"\setlength{\textwidth}{16cm}\setlength{\oddsidemargin}{0cm}",
+                r"\setlength{\evensidemargin}{0cm}",
+                r"\begin{document}", ""]
+    if fragment:
+        preamble = ["% Results of the verifier, to \\input into a document whose preamble",
+                    "% loads the packages tikz, longtable and array.", ""]
+    out = preamble + [
+           r"\section*{Results of " + latex_escape(run.scope or "run " + run.run_id) + "}", "",
            latex_escape(_caution(run)), "",
-           r"{\small", r"\begin{longtable}{lp{5.6cm}rrrrr}", r"\hline",
+           r"{\small\setlength{\tabcolsep}{3pt}",
+           r"\begin{longtable}{>{\raggedright}p{0.22\linewidth}p{0.3\linewidth}rrrrr}",
+           r"\hline",
            r"claim & family & cases & holds & fails & outside & other \tabularnewline",
            r"\hline", r"\endhead", r"\hline", r"\endfoot"]
     for c in run.claims:
         for i, f in enumerate(c.families):
             other = sum(f.counts.get(o, 0) for o in UNSETTLED)
-            out.append((r"\texttt{" + latex_escape(c.name) + "}" if i == 0 else "") + " & "
-                       + r"\raggedright " + latex_escape(f.name)
-                       + (r" {\footnotesize(" + latex_escape(_short(_parameter_text(
-                           f.parameters), 60)) + ")}" if _parameter_text(f.parameters) else "")
+            out.append((r"\texttt{" + latex_escape(c.name).replace("-", r"-\allowbreak{}")
+                        + "}" if i == 0 else "") + " & "
+                       + r"\raggedright " + _binds_latex(c, f) + latex_escape(f.name)
+                       + (r" {\footnotesize(" + _breakable(_parameter_text(f.parameters))
+                          + ")}" if _parameter_text(f.parameters) else "")
                        + " & " + " & ".join(
                            str(x) for x in (f.cases, f.counts.get("holds", 0),
                                             f.counts.get("fails", 0),
@@ -1013,21 +1195,27 @@ def _latex(run: RunData) -> str:
         if c.where:
             out.append(r"\noindent where {\ttfamily " + latex_escape(c.where) + r"\par}")
         out += [r"\noindent Source: " + latex_escape(c.source or "not given") + r".\par",
-                r"\noindent Families: " + latex_escape("; ".join(
-                    f"{f.name} ({_parameter_text(f.parameters)}): {f.cases} cases"
-                    for f in c.families)) + r".\par",
+                r"{\raggedright\noindent Families: " + "; ".join(
+                    _binds_latex(c, f) + latex_escape(f.name) + " ("
+                    + _breakable(_parameter_text(f.parameters)) + f"): {f.cases} cases"
+                    for f in c.families) + r".\par}",
                 r"\noindent Expected " + latex_escape(c.expect) + "; verdict "
                 + latex_escape(c.verdict) + f"; {c.cases} cases, "
                 + latex_escape(_seconds(c.seconds)) + r".\par"]
+        if len(run.runs) > 1:
+            out.append(r"\noindent Run \texttt{" + latex_escape(c.run_id) + r"}.\par")
         if c.certificate:
-            out.append(r"\noindent Re-check: \texttt{" + latex_escape(
-                recheck_command(c.certificate)) + r"}\par")
+            out.append(r"{\raggedright\noindent Re-check: \texttt{" + _breakable(
+                recheck_command(c.certificate)) + r"}\par}")
         record = c.counterexample
         if record:
             out += ["", r"\paragraph{Minimal counterexample.}"]
             for v, facets in (record.get("complexes") or {}).items():
                 out += [latex_escape(v) + " = " + _facets_latex(facets) + r"\par", "",
                         r"\begin{center}", _tikz(facets), r"\end{center}"]
+            for v, entry in _readable(record).items():
+                out.append(r"\noindent " + latex_escape(v) + " relabelled: "
+                           + _breakable(describe_readable(entry)) + r"\par")
             sides = record.get("sides") or []
             if _simplex_order(record):
                 out.append(r"\noindent " + latex_escape(_simplex_order(record)) + r".\par")
@@ -1046,16 +1234,35 @@ def _latex(run: RunData) -> str:
                         + r"}\par" for v in record["certified"]]
                 out.append("}")
         out.append("")
-    out += [r"\end{document}", ""]
+    out += [r"\section*{Provenance}", "", r"{\small\raggedright"] + [
+        r"\noindent " + latex_escape(what) + ": " + _breakable(value) + r"\par"
+        for what, value in provenance(run)] + ["}", ""]
+    if not fragment:
+        out += [r"\end{document}", ""]
     return "\n".join(out)
 
 
+def _breakable(text: str) -> str:
+    """Escaped text that may break after commas, slashes, hyphens, equals signs and every 16
+    characters of a long word (hashes), so that nothing is cut and no line runs off."""
+    pieces = re.findall(r"[^,/=\s-]{1,16}[,/=-]?|[,/=-]|\s+", str(text))
+    return r"\allowbreak{}".join(latex_escape(p) for p in pieces)
+
+
+def _binds_latex(claim: ClaimData, family: FamilyData) -> str:
+    """For a claim over several complexes: which variable the family binds."""
+    variables = {f.bind for f in claim.families}
+    return ("$" + latex_escape(family.bind) + r"\leftarrow$ ") if len(variables) > 1 else ""
+
+
 def write_latex(store_path, path, run_id: str | None = None,
-                certificates_dir: str | Path = "reports/certificates") -> Path:
+                certificates_dir: str | Path = "reports/certificates",
+                fragment: bool = False, runs: list[str] | None = None,
+                every_claim: bool = False) -> Path:
     """Write a LaTeX document of one run: claims × families × outcomes, and each
     counterexample's facet list with a TikZ drawing.
 
-    It compiles with a plain LaTeX install (``article``, ``tikz`` and ``longtable``,
+    It compiles with a plain LaTeX install (``article``, ``tikz``, ``longtable``, ``array``,
     default fonts, ASCII source; on Debian the packages texlive-latex-base and
     texlive-pictures).  Claim texts are
     escaped with :func:`latex_escape`; vertex positions come from the drawing module's
@@ -1065,6 +1272,9 @@ def write_latex(store_path, path, run_id: str | None = None,
         store_path: the SQLite store.
         path: the .tex file to write (its folder is created).
         run_id: the run (default: the latest).
+        fragment: write no preamble and no ``\\begin{document}``: a file to ``\\input``
+            into a paper whose preamble loads tikz and longtable.
+        runs, every_claim: the scope, as for :func:`collect`.
 
     Returns: the path written.  Raises :class:`ReportError` as :func:`collect` does.
 
@@ -1076,10 +1286,10 @@ def write_latex(store_path, path, run_id: str | None = None,
 
     Notes: a matrix-valued side is written one row per line.  Reference: SPEC §9.
     """
-    run = collect(store_path, run_id, certificates_dir)
+    run = collect(store_path, run_id, certificates_dir, runs=runs, every_claim=every_claim)
     target = Path(path)
     target.parent.mkdir(parents=True, exist_ok=True)
-    target.write_text(_latex(run), encoding="utf-8")
+    target.write_text(_latex(run, fragment=fragment), encoding="utf-8")
     return target
 
 
