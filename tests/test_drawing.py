@@ -231,11 +231,18 @@ def test_layouts_are_deterministic(name):
 
 
 def test_public_layout_is_the_drawing_layout():
-    # other pictures of a complex (the TikZ export of reports) reuse drawing.layout
-    K = catalog.complex("projective-plane-6")
+    # other pictures of a complex (the TikZ export of reports) reuse drawing.layout; a
+    # complex whose 1-skeleton is not planar (the projective plane's is K_6) is drawn as
+    # a 3-dimensional view at drawing.space_layout
+    K = catalog.complex("cross-polytope-boundary-3")
     where = {t.get_gid(): tuple(t.get_position()) for t in draw_complex(K).findobj(
         lambda a: str(a.get_gid()).startswith("vertex:"))}
     assert {f"vertex:{v}": tuple(p) for v, p in zip(K.labels, drawing.layout(K))} == where
+    P = catalog.complex("projective-plane-6")
+    where = {t.get_gid(): tuple(t.get_position_3d()) for t in draw_complex(P).findobj(
+        lambda a: str(a.get_gid()).startswith("vertex:"))}
+    assert {f"vertex:{v}": tuple(p) for v, p in zip(P.labels, drawing.space_layout(P))} \
+        == where
 
 
 def test_layouts_do_not_depend_on_the_hash_seed():

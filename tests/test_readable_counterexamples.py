@@ -150,3 +150,76 @@ def test_smallest_failing_case_of_an_exhaustive_family(tmp_path):
                           str(tmp_path / "c")], capture_output=True, text=True, timeout=300)
     assert ("smallest failing case of the exhaustive families: "
             f"{smallest['case_id']} (4 vertices, 11 simplices)") in " ".join(out.stdout.split())
+
+
+# ------------------------------------------------------------------- drawings
+def test_a_closed_non_orientable_surface_is_drawn_in_three_dimensions():
+    # the 1-skeleton of the 6-vertex projective plane is K_6, not planar (Kuratowski), so
+    # no plane drawing avoids crossings; the drawing is a 3-dimensional view that still
+    # names every simplex, and it says it is a drawing
+    from mpl_toolkits.mplot3d import Axes3D
+
+    from verifier.drawing import counterexample_figure, drawn, figure_png, needs_space
+    RP2 = catalog.complex("projective-plane-6")
+    assert needs_space(RP2) and needs_space(catalog.complex("torus-7"))
+    assert not needs_space(catalog.complex("sphere-2"))          # planar: drawn flat
+    assert not needs_space(Complex.from_facets([[1, 2], [2, 3], [3, 1]]))
+    fig = counterexample_figure(RP2.facet_labels(), sides=["1", "0"])
+    assert any(isinstance(ax, Axes3D) for ax in fig.axes)
+    shown = drawn(fig)
+    assert len(shown["triangle"]) == 10 and len(shown["edge"]) == 15
+    assert sorted(shown["vertex"]) == ["1", "2", "3", "4", "5", "6"]
+    assert "3-dimensional view" in fig._suptitle.get_text()
+    assert "a drawing" in fig._suptitle.get_text()
+    assert figure_png(fig).startswith(b"\x89PNG")
+    flat = counterexample_figure(catalog.complex("sphere-2").facet_labels())
+    assert not any(isinstance(ax, Axes3D) for ax in flat.axes)
+
+
+def test_only_simplices_named_by_the_witness_are_highlighted():
+    # a homology degree k = 1 is a number, not vertex 1; a vertex bound by a quantifier
+    # is written [1]; a matrix entry named by row and column numbers names no simplex
+    from verifier.drawing import counterexample_figure, drawn, witness_simplices
+    K = Complex.from_facets([[1, 2, 3], [3, 4]])
+    assert witness_simplices(K, {"k": "1"}) == []
+    assert witness_simplices(K, {"entry": "[2, 3]", "left": "1", "right": "0"}) == []
+    assert witness_simplices(K, {"v": "[1]"}) == [(1,)]
+    assert witness_simplices(K, {"entry": "[[3], [3, 4]]"}) == [(3,), (3, 4)]
+    assert drawn(counterexample_figure(K.facet_labels(), witness={"k": "1"})).get(
+        "highlight", []) == []
+
+
+def test_the_sides_of_a_failed_comparison_are_labelled_with_their_expressions():
+    from verifier.drawing import counterexample_figure
+    from verifier.report import side_expressions
+    statement = "betti(K, 1, 2) == betti(K, 1)"
+    assert side_expressions(statement) == ("betti(K, 1, 2)", "betti(K, 1)")
+    assert side_expressions("is_reciprocal(charpoly(connection(K)))") is None
+    fig = counterexample_figure(catalog.complex("projective-plane-6").facet_labels(),
+                                sides=["1", "0"], expressions=side_expressions(statement))
+    texts = [t.get_text() for t in fig.texts]
+    assert "left: betti(K, 1, 2) = 1" in texts and "right: betti(K, 1) = 0" in texts
+
+
+def test_spectrum_pictures_only_for_spectral_claims(tmp_path):
+    # the hydrogen identity compares matrices entry by entry (connection, green,
+    # signless_hodge): no spectrum is involved, so its report draws none; a claim on
+    # counts of positive eigenvalues keeps its spectrum picture
+    from verifier.report import is_spectral, write_report
+    assert not is_spectral("connection(K) - green(K) == signless_hodge(K)")
+    assert not is_spectral("sum(green(K)) == euler(K)")
+    assert is_spectral("positive(connection(K)) - negative(connection(K)) == euler(K)")
+    assert is_spectral("is_reciprocal(charpoly(connection(K) ** 2))")
+    assert is_spectral("zeros_in_box(connection(K) ** 2, -1, 1, 0, 20) == 0")
+    path = tmp_path / "hydrogen.toml"
+    path.write_text('[[claim]]\nname = "hydrogen"\n'
+                    'statement = "connection(K) - green(K) == signless_hodge(K)"\n'
+                    'expect = "fails"\nsource = "O. Knill, arXiv:1803.01464"\n'
+                    '[[claim.over]]\nfamily = "all-complexes"\nmax_vertices = 3\n')
+    run([path], options(tmp_path))
+    written = write_report(tmp_path / "store.sqlite", tmp_path / "out",
+                           certificates_dir=tmp_path / "none")
+    assert [p.name for p in written if p.suffix == ".png"] == ["hydrogen-counterexample.png"]
+    text = (tmp_path / "out" / "report.md").read_text()
+    assert "Left side: `connection(K) - green(K)`" in text
+    assert "Right side: `signless_hodge(K)`" in text

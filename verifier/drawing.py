@@ -34,6 +34,13 @@ Kamada-Kawai (up to 300 vertices) or a spring layout with seed 0.  A 2-sphere ha
 crossing-free plane drawing in which every triangle is bounded: one triangle surrounds
 the others, is shaded lighter, and the title names it.
 
+Closed surfaces and other 2-complexes whose 1-skeleton is not planar (the 6-vertex
+projective plane has the complete graph K_6 as its 1-skeleton) have no plane drawing
+without crossings.  They are drawn as a 3-dimensional view (mplot3d): vertex positions
+by a Kamada-Kawai layout in three dimensions [KK] (a spring layout with seed 0 above
+300 vertices), triangles shaded by the angle of their plane to a fixed light, and the
+title says it is a 3-dimensional view.  The same gids name the same simplices.
+
 Spectral pictures (:func:`draw_spectrum`) are made from floating-point eigenvalues and
 say so; the counts written on them are exact and supplied by the caller (for the
 connection matrix, :func:`spectrum_of` takes them from the exact signature).
@@ -61,6 +68,7 @@ import base64
 import html
 import io
 import math
+import textwrap
 from collections.abc import Iterable, Mapping
 
 import numpy as np
@@ -75,6 +83,8 @@ __all__ = [
     "DrawingError",
     "draw_complex",
     "layout",
+    "space_layout",
+    "needs_space",
     "counterexample_figure",
     "draw_spectrum",
     "spectrum_of",
@@ -257,6 +267,116 @@ def _resolve_highlight(K: Complex, highlight) -> list[tuple[int, ...]]:
     return sorted(set(chosen), key=lambda s: (len(s), s))
 
 
+def needs_space(K: Complex) -> bool:
+    """Whether K is drawn as a 3-dimensional view: it has a 2-simplex and its 1-skeleton
+    is not planar (no plane drawing of its edges without crossings).
+
+    >>> needs_space(Complex.from_facets([[0, 1, 2], [0, 2, 3]]))
+    False
+    """
+    import networkx as nx
+
+    if K.dim < 2 or K.n_vertices < 5 or sum(K.f_vector[:3]) > MAX_DRAWN_SIMPLICES:
+        return False
+    planar, _ = nx.check_planarity(K.graph())
+    return not planar
+
+
+def space_layout(K: Complex) -> np.ndarray:
+    """Positions in space of K's vertices, as used by the 3-dimensional view.
+
+    Row i is the position of vertex i; deterministic: Kamada-Kawai in 3 dimensions [KK]
+    from a fixed start, or a spring layout with seed 0 above 300 vertices; scaled into
+    the cube [-1, 1]^3.  Floating point: a drawing, nothing is decided by it.
+
+    >>> space_layout(Complex.from_facets([[0, 1]])).shape
+    (2, 3)
+    """
+    import networkx as nx
+
+    graph = K.graph()
+    nodes = list(range(K.n_vertices))
+    if K.n_vertices <= 300:
+        start = {v: (math.cos(2 * math.pi * v / len(nodes)), math.sin(2 * math.pi * v / len(nodes)),
+                     ((v % 3) - 1) / 2) for v in nodes}
+        found = nx.kamada_kawai_layout(graph, pos=start, dim=3)
+    else:
+        found = nx.spring_layout(graph, dim=3, seed=LAYOUT_SEED)
+    pos = np.array([found[v] for v in nodes], dtype=float)
+    pos = pos - pos.mean(axis=0)
+    radius = np.abs(pos).max()
+    return np.round(pos / radius if radius > 0 else pos, 12) + 0.0
+
+
+def _draw_in_space(ax, K: Complex, highlight=()) -> str:
+    """Draw K on 3-dimensional axes; returns the note for the title."""
+    from mpl_toolkits.mplot3d.art3d import Poly3DCollection
+
+    chosen = _resolve_highlight(K, highlight)
+    pos = space_layout(K)
+    light = np.array([0.4, -0.5, 0.77])
+    base = np.array([int(_FILL[i:i + 2], 16) / 255 for i in (1, 3, 5)])
+    for s in K.simplices:
+        if len(s) == 3:
+            a, b, c = pos[list(s)]
+            normal = np.cross(b - a, c - a)
+            length = np.linalg.norm(normal)
+            shade = 0.45 + 0.55 * (abs(normal @ light) / length if length > 0 else 0.5)
+            patch = Poly3DCollection([pos[list(s)]], facecolors=[(*(base * shade), 0.45)],
+                                     edgecolors="none")
+            patch.set_gid(f"triangle:{_name(K, s)}")
+            ax.add_collection3d(patch)
+        elif len(s) == 2:
+            (line,) = ax.plot(*pos[list(s)].T, color=_EDGE, linewidth=1.0)
+            line.set_gid(f"edge:{_name(K, s)}")
+    for s in chosen:
+        xyz = pos[list(s)]
+        if len(s) == 1:
+            artist = ax.scatter(*xyz.T, s=420, facecolors="none", edgecolors=_HIGHLIGHT,
+                                linewidths=2.5, depthshade=False)
+        elif len(s) == 2:
+            (artist,) = ax.plot(*xyz.T, color=_HIGHLIGHT, linewidth=4)
+        else:
+            artist = Poly3DCollection([xyz[:3]] if len(s) == 3 else [
+                xyz[list(t)] for t in ((0, 1, 2), (0, 1, 3), (0, 2, 3), (1, 2, 3))],
+                facecolors=(*[int(_HIGHLIGHT[i:i + 2], 16) / 255 for i in (1, 3, 5)], 0.55),
+                edgecolors=_HIGHLIGHT, linewidths=2)
+            ax.add_collection3d(artist)
+        artist.set_gid(f"highlight:{_name(K, s)}")
+    labelled = K.n_vertices <= MAX_LABELLED_VERTICES
+    for v, label in enumerate(K.labels if labelled else ()):
+        text = ax.text(*pos[v], _text(label), ha="center", va="center", fontsize=10,
+                       zorder=6, bbox=dict(boxstyle="circle,pad=0.25", facecolor="white",
+                                           edgecolor=_EDGE, linewidth=0.8))
+        text.set_gid(f"vertex:{_text(label)}")
+    if not labelled:
+        dots = ax.scatter(*pos.T, s=8, color=_EDGE)
+        dots.set_gid("vertex-dots")
+    ax.set_xlim(-1.05, 1.05)
+    ax.set_ylim(-1.05, 1.05)
+    ax.set_zlim(-1.05, 1.05)
+    ax.set_box_aspect((1, 1, 1))
+    ax.view_init(elev=22, azim=35)
+    ax.set_axis_off()
+    notes = ["3-dimensional view, the 1-skeleton is not planar; a drawing, positions by a "
+             "force layout in floating point"]
+    if K.dim >= 3:
+        hidden = "3-simplices" if K.dim == 3 else f"simplices of dimension 3 to {K.dim}"
+        notes.append(f"{K.dim}-dimensional: 2-skeleton drawn, {hidden} not shown")
+    if not labelled:
+        notes.append(f"{K.n_vertices} vertices: labels omitted")
+    return "; ".join(notes)
+
+
+def _panel(fig, rect, K: Complex, highlight=()) -> tuple[object, str]:
+    """Axes for K at ``rect`` of the figure (3-dimensional when K needs space), drawn."""
+    if needs_space(K):
+        ax = fig.add_axes(rect, projection="3d")
+        return ax, _draw_in_space(ax, K, highlight)
+    ax = fig.add_axes(rect)
+    return ax, _draw_on(ax, K, highlight)
+
+
 def _draw_on(ax, K: Complex, highlight=()) -> str:
     """Draw K on the axes ``ax``; returns a note for the title ('' when nothing to say)."""
     drawn_count = sum(K.f_vector[:3])
@@ -384,11 +504,10 @@ def draw_complex(K: Complex, highlight: Iterable | None = None, title: str | Non
     Reference: [T] for the planar layout, [KK] for the others.
     """
     fig = _figure(size, size)
-    ax = fig.add_axes((0.02, 0.02, 0.96, 0.88))
-    note = _draw_on(ax, K, highlight)
+    ax, note = _panel(fig, (0.02, 0.02, 0.96, 0.88), K, highlight)
     heading = title if title is not None else f"f-vector {list(K.f_vector)}"
     if note:
-        heading = f"{heading}\n({note})"
+        heading = f"{heading}\n" + textwrap.fill(f"({note})", 72)
     fig.suptitle(heading, fontsize=11)
     return fig
 
@@ -406,15 +525,20 @@ def _parse_value(value):
         return value
 
 
-def _candidates(value) -> list[tuple]:
-    """Label tuples a witness value may name: a simplex, a vertex, or a pair of simplices."""
-    if isinstance(value, (list, tuple)):
-        if value and all(isinstance(x, (list, tuple)) for x in value):
+def _candidates(key: str, value) -> list[tuple]:
+    """Label tuples a witness entry names as simplices.  A simplex is written as a list
+    of labels (the evaluator writes every simplex so, a vertex as ``[v]``); a matrix
+    entry (key ``entry``) as a pair of such lists.  A bare number or text -- a degree
+    k = 1, a count -- names no simplex, and neither does an entry given by row and
+    column numbers."""
+    def simplex(x) -> bool:
+        return (isinstance(x, (list, tuple)) and len(x) > 0
+                and not any(isinstance(y, (list, tuple, bool)) for y in x))
+    if key == "entry":
+        if isinstance(value, (list, tuple)) and len(value) == 2 and all(map(simplex, value)):
             return [tuple(x) for x in value]
-        return [tuple(value)]
-    if isinstance(value, (int, str)) and not isinstance(value, bool):
-        return [(value,)]
-    return []
+        return []
+    return [tuple(value)] if simplex(value) else []
 
 
 def witness_simplices(K: Complex, witness: Mapping | None) -> list[tuple]:
@@ -423,19 +547,22 @@ def witness_simplices(K: Complex, witness: Mapping | None) -> list[tuple]:
     A witness maps names to texts: ``{"entry": "[[0, 1], [2]]", "left": "1", "right":
     "0"}`` names the matrix entry at two simplices; ``{"x": "[1, 2, 3]"}`` names the
     simplex a quantifier stopped at.  Texts are read with ``ast.literal_eval``; the
-    values of ``left``/``right`` and anything that is not a simplex of K are ignored.
+    values of ``left``/``right``, bare numbers (a degree ``k = 1`` is not vertex 1) and
+    anything that is not a simplex of K are ignored.
 
     >>> K = Complex.from_facets([[0, 1, 2]])
     >>> witness_simplices(K, {"entry": "[[0], [1, 2]]", "left": "1", "right": "2"})
     [(0,), (1, 2)]
     >>> witness_simplices(K, {"x": "[0, 7]"})
     []
+    >>> witness_simplices(K, {"k": "1"}), witness_simplices(K, {"v": "[1]"})
+    ([], [(1,)])
     """
     found = []
     for key, value in (witness or {}).items():
         if key in ("left", "right", "shapes"):
             continue
-        for labels in _candidates(_parse_value(value)):
+        for labels in _candidates(key, _parse_value(value)):
             try:
                 K.simplex_of(labels)
             except (KeyError, TypeError):
@@ -451,7 +578,8 @@ def _short(text: str, limit: int = 90) -> str:
 
 
 def counterexample_figure(facets, sides: list[str] | None = None, witness: Mapping | None = None,
-                          title: str | None = None, size: float = 5.0) -> Figure:
+                          title: str | None = None, size: float = 5.0,
+                          expressions: tuple[str, str] | None = None) -> Figure:
     """The picture of a counterexample: its complex drawn with the witness highlighted.
 
     Parameters:
@@ -461,6 +589,9 @@ def counterexample_figure(facets, sides: list[str] | None = None, witness: Mappi
         witness: the counterexample's witness mapping (see :func:`witness_simplices`);
             the simplices it names are highlighted.
         title: the figure's title (default: "counterexample" and the f-vector).
+        expressions: the texts of the comparison's left and right sides; with two
+            sides, each is written as ``left: EXPRESSION = VALUE`` (the exact value, or a
+            note that it is too long to write here and stands beside the drawing).
 
     Returns:
         a ``Figure`` with gids as in :func:`draw_complex`.
@@ -483,13 +614,18 @@ def counterexample_figure(facets, sides: list[str] | None = None, witness: Mappi
     if witness:
         shown = ", ".join(f"{k} = {v}" for k, v in witness.items())
         captions.append(_short(f"witness: {shown}"))
-    if sides and len(sides) == 2 and len(sides[0]) + len(sides[1]) <= 100:
+    if sides and len(sides) == 2 and expressions:
+        for side, expression, value in zip(("left", "right"), expressions, sides):
+            value = " ".join(str(value).split())
+            shown = value if len(value) <= 48 else "too long to write here; exact value beside"
+            captions.append(f"{side}: {_short(expression, 110 - len(shown))} = {shown}")
+    elif sides and len(sides) == 2 and len(sides[0]) + len(sides[1]) <= 100:
         captions.append(_short(f"{sides[0]}  vs  {sides[1]}", 110))
     bottom = 0.04 + 0.05 * len(captions)
     notes = []
     for i, (name, K) in enumerate(panels):
-        ax = fig.add_axes((i / count + 0.01, bottom, 1 / count - 0.02, 0.86 - bottom))
-        note = _draw_on(ax, K, witness_simplices(K, witness))
+        ax, note = _panel(fig, (i / count + 0.01, bottom, 1 / count - 0.02, 0.86 - bottom), K,
+                          witness_simplices(K, witness))
         if name:
             ax.set_title(f"{name}: f-vector {list(K.f_vector)}", fontsize=10)
         if note:
@@ -498,8 +634,8 @@ def counterexample_figure(facets, sides: list[str] | None = None, witness: Mappi
         title = ("counterexample" if len(panels) != 1 or panels[0][0]
                  else f"counterexample: f-vector {list(panels[0][1].f_vector)}")
     if notes:
-        title = f"{title}\n({notes[0]})"
-    fig.suptitle(title, fontsize=11)
+        title = f"{title}\n" + textwrap.fill(f"({notes[0]})", 64)
+    fig.suptitle(title, fontsize=11 if not notes else 9.5)
     for j, caption in enumerate(captions):
         fig.text(0.5, 0.02 + 0.05 * (len(captions) - 1 - j), caption, ha="center",
                  fontsize=9, family="monospace")

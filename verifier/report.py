@@ -14,8 +14,9 @@ What each claim gets:
 * the summed case time;
 * the certificate file and the exact command that re-checks it;
 * for a counterexample: a drawing beside the exact values of both sides and the witness;
-* for a spectral claim (one that uses the connection matrix, its inverse, its
-  characteristic polynomial, signature, multiplicities or zeta function): the spectrum
+* for a spectral claim (one that uses a characteristic polynomial, signature, counts of
+  positive or negative eigenvalues, multiplicities, a zeta function or eigenvalue
+  enclosures; see :func:`is_spectral`): the spectrum
   of L (or of L² when the statement squares it) of the counterexample, or of one tested
   complex when the claim held.
 
@@ -54,8 +55,8 @@ __all__ = ["ReportError", "RunData", "ClaimData", "FamilyData", "CAUTION", "coll
 
 CAUTION = "Checking an identity on finitely many complexes is evidence, not proof"
 
-SPECTRAL_FUNCTIONS = ("connection", "green", "charpoly", "signature", "positive", "negative",
-                      "multiplicity", "zeta")
+SPECTRAL_FUNCTIONS = ("charpoly", "signature", "positive", "negative", "multiplicity", "zeta",
+                      "zeros_in_box", "zeros_on_axis", "eigenvalue_enclosures")
 _SPECTRAL = re.compile(r"\b(" + "|".join(SPECTRAL_FUNCTIONS) + r")\s*\(")
 _SQUARED = re.compile(r"\bconnection\s*\(\s*\w+\s*\)\s*\*\*\s*2\b")
 _OUTCOMES = OUTCOMES
@@ -103,6 +104,7 @@ class ClaimData:
     run_id: str = ""                   # the run this claim's verdict comes from
     certificate_sha256: str | None = None
     precision: list = field(default_factory=list)   # bits of the certified values recorded
+    smallest: dict | None = None       # smallest failing case of the exhaustive families
 
 
 @dataclass
@@ -130,18 +132,22 @@ class RunData:
 
 # ------------------------------------------------------------------ small helpers
 def is_spectral(statement: str) -> bool:
-    """Whether a claim's statement is spectral: it calls a function of the spectrum of the
-    connection matrix.
+    """Whether a claim's statement is spectral: it calls a function of a spectrum, so that
+    a picture of the spectrum adds something to its report.
 
     The connection matrix L of K has L[x, y] = 1 when the simplices x and y intersect
-    [K1]; a statement is spectral when it calls ``connection``, ``green`` (L⁻¹),
-    ``charpoly``, ``signature``, ``positive``, ``negative``, ``multiplicity`` or ``zeta``.
+    [K1]; a statement is spectral when it calls ``charpoly``, ``signature``,
+    ``positive``, ``negative``, ``multiplicity``, ``zeta`` (or the counts of its zeros,
+    ``zeros_in_box``, ``zeros_on_axis``) or ``eigenvalue_enclosures``.  A statement
+    about the entries of L or of its inverse (``connection``, ``green``) is not.
 
     Parameters: statement -- the claim's statement text.
     Returns: True or False.
 
     >>> is_spectral("sum(green(K)) == euler(K)"), is_spectral("euler(K) == wu(K)")
-    (True, False)
+    (False, False)
+    >>> is_spectral("positive(connection(K)) - negative(connection(K)) == euler(K)")
+    True
 
     Notes: a word match on function calls; a name inside another word does not count.
     Reference: [K1], [K2].
@@ -485,6 +491,7 @@ def collect(store_path, run_id: str | None = None,
                 certificate_sha256=_sha256_file(certificate)
                 if note.endswith("of this run") else None,
                 precision=_precisions(certified)))
+        _smallest(store_path, run_id, claims)
         described = {"run_id": run_id, "started": started, "finished": finished,
                      "engine": engine, "command": row[4],
                      "file_sha256": request.get("file_sha256") or {}}
@@ -492,6 +499,30 @@ def collect(store_path, run_id: str | None = None,
                        runs=[described], scope=f"run {run_id}")
     finally:
         db.close()
+
+
+def _smallest(store_path, run_id: str, claims: list[ClaimData]) -> None:
+    """Fill in each failing claim's smallest failing case of its exhaustive families."""
+    from .run.store import Store, StoreError
+
+    if not any(c.counts.get("fails") for c in claims):
+        return
+    try:
+        store = Store.read_only(store_path)
+    except StoreError:
+        return
+    try:
+        for c in claims:
+            if c.counts.get("fails"):
+                c.smallest = store.smallest_failing(run_id, c.name)
+    finally:
+        store.close()
+
+
+def _smallest_text(c: ClaimData) -> str:
+    m = c.smallest
+    return (f"smallest failing case of the exhaustive families: {m['case_id']} "
+            f"({m['vertices']} vertices, {m['simplices']} simplices)") if m else ""
 
 
 def _column(db, table: str, column: str) -> bool:
@@ -635,7 +666,33 @@ def counterexample_drawing(claim: ClaimData):
     facets = next(iter(complexes.values())) if len(complexes) == 1 else complexes
     return drawing.counterexample_figure(facets, sides=record.get("sides"),
                                          witness=record.get("witness"),
-                                         title=f"{claim.name}: minimal counterexample")
+                                         title=f"{claim.name}: minimal counterexample",
+                                         expressions=side_expressions(claim.statement))
+
+
+def side_expressions(statement: str) -> tuple[str, str] | None:
+    """The texts of the two sides of a statement that is one comparison (``a == b``,
+    ``a < b``, ...), as written; None for any other statement.
+
+    >>> side_expressions("betti(K, 1, 2) == betti(K, 1)")
+    ('betti(K, 1, 2)', 'betti(K, 1)')
+    >>> side_expressions("is_reciprocal(charpoly(connection(K)))") is None
+    True
+    """
+    import ast
+
+    text = "(" + str(statement or "").strip() + "\n)"
+    try:
+        tree = ast.parse(text, mode="eval").body
+    except (SyntaxError, ValueError):
+        return None
+    if not isinstance(tree, ast.Compare) or len(tree.ops) != 1:
+        return None
+    left = ast.get_source_segment(text, tree.left)
+    right = ast.get_source_segment(text, tree.comparators[0])
+    if left is None or right is None:
+        return None
+    return " ".join(left.split()), " ".join(right.split())
 
 
 def _counterexample_picture(claim: ClaimData) -> _Picture | None:
@@ -842,13 +899,18 @@ def _markdown(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
             lines.append(f"- from case `{record.get('case_id')}` ({record.get('family')}), "
                          f"{len(record.get('steps') or [])} shrinking steps, "
                          f"{'minimal' if record.get('minimal') else 'shrinking stopped early'}")
+            if c.smallest:
+                lines.append(f"- {_md(_smallest_text(c))}")
             sides = record.get("sides") or []
             if _simplex_order(record):
                 lines += ["", _md(_simplex_order(record)).replace("{", "`{").replace("}", "}`")
                           + "."]
             if len(sides) == 2:
-                lines += ["", "Left side:", "", "```", _value_text(sides[0]), "```", "",
-                          "Right side:", "", "```", _value_text(sides[1]), "```"]
+                left, right = side_expressions(c.statement) or ("", "")
+                lines += ["", "Left side:" + (f" `{left}`" if left else ""), "", "```",
+                          _value_text(sides[0]), "```", "",
+                          "Right side:" + (f" `{right}`" if right else ""), "", "```",
+                          _value_text(sides[1]), "```"]
             elif sides:
                 lines += ["", "Value: `" + " ".join(map(str, sides)) + "`"]
             if record.get("witness"):
@@ -1008,12 +1070,17 @@ def _html(run: RunData, pictures: dict[str, list[_Picture]]) -> str:
                        f"({_h(record.get('family'))}), {len(record.get('steps') or [])} "
                        "shrinking steps, " + ("minimal" if record.get("minimal")
                                               else "shrinking stopped early") + "</p>")
+            if c.smallest:
+                out.append(f'<p class="meta">{_h(_smallest_text(c))}</p>')
             sides = record.get("sides") or []
             if _simplex_order(record):
                 out.append(f'<p class="meta">{_h(_simplex_order(record))}</p>')
             if len(sides) == 2:
-                out += [f"<p>left side</p><pre>{_h(_value_text(sides[0]))}</pre>",
-                        f"<p>right side</p><pre>{_h(_value_text(sides[1]))}</pre>"]
+                left, right = side_expressions(c.statement) or ("", "")
+                out += [f"<p>left side{' <code>' + _h(left) + '</code>' if left else ''}</p>"
+                        f"<pre>{_h(_value_text(sides[0]))}</pre>",
+                        f"<p>right side{' <code>' + _h(right) + '</code>' if right else ''}"
+                        f"</p><pre>{_h(_value_text(sides[1]))}</pre>"]
             elif sides:
                 out.append(f"<p>value</p><pre>{_h(' '.join(map(str, sides)))}</pre>")
             if record.get("witness"):
@@ -1216,12 +1283,17 @@ def _latex(run: RunData, fragment: bool = False) -> str:
             for v, entry in _readable(record).items():
                 out.append(r"\noindent " + latex_escape(v) + " relabelled: "
                            + _breakable(describe_readable(entry)) + r"\par")
+            if c.smallest:
+                out.append(r"\noindent " + _breakable(_smallest_text(c)) + r".\par")
             sides = record.get("sides") or []
             if _simplex_order(record):
                 out.append(r"\noindent " + latex_escape(_simplex_order(record)) + r".\par")
-            for label, value in zip(("Left side", "Right side") if len(sides) == 2
-                                    else ("Value",), sides):
-                out += [r"\noindent " + label + r":\par", r"{\ttfamily\small"]
+            named = side_expressions(c.statement) or ("", "")
+            for label, value, expression in zip(("Left side", "Right side") if len(sides) == 2
+                                                else ("Value",), sides, named):
+                out += [r"\noindent " + label + (r" \texttt{" + _breakable(expression) + "}"
+                                                 if expression and len(sides) == 2 else "")
+                        + r":\par", r"{\ttfamily\small"]
                 out += [r"\noindent\mbox{" + latex_escape(row).replace(" ", "~") + r"}\par"
                         for row in _value_text(value).split("\n")]
                 out.append("}")
