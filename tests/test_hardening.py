@@ -433,7 +433,7 @@ def test_summary_of_a_store_that_is_a_folder(tmp_path, capsys):
     store = tmp_path / "folder.sqlite"
     store.mkdir()
     assert refused_in_process(capsys, "summary", "--store", store) == (
-        f"error: store {str(store)!r} cannot be opened (unable to open database file)")
+        f"error: store {str(store)!r} is a directory, not a store file")
 
 
 @pytest.mark.skipif(os.geteuid() == 0, reason="permissions do not bind root")

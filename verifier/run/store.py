@@ -194,6 +194,8 @@ class Store:
         written (SQLite's read-only mode), so queries can never change a store.  Columns
         added by later versions read as NULL in an older store."""
         path = Path(path)
+        if path.is_dir():
+            raise StoreError(f"store {str(path)!r} is a directory, not a store file")
         if not path.is_file():
             raise StoreError(f"store {str(path)!r}: no such file (run `verifier run` first, "
                              "or name a store with --store)")
