@@ -441,3 +441,29 @@ def test_the_exact_python_flow_agrees_with_the_compiled_flow():
                                            R.dims, critical_index)
                 compiled = {i: v for (i, jj), v in entries.items() if jj == j}
                 assert exact_column == compiled
+
+
+# ---------------------------------------------------------------- h-vector, spheres
+def test_h_vectors_of_spheres_satisfy_dehn_sommerville():
+    # h_k = h_(d-k) for simplicial spheres, and sum h_k = f_(d-1) for pure complexes
+    # (R. P. Stanley, Combinatorics and Commutative Algebra (1996), II.6; G. M. Ziegler,
+    # Lectures on Polytopes (1995), Theorem 8.21)
+    from verifier.invariants import h_vector
+
+    for name in ["sphere-1", "sphere-2", "sphere-3", "cross-polytope-boundary-3",
+                 "cross-polytope-boundary-4", "poincare-sphere-16"]:
+        for K in (catalog.complex(name), refine(catalog.complex(name))):
+            h = h_vector(K)
+            assert h == h[::-1], (name, h)
+            assert sum(h) == K.f_vector[-1]
+    # not a sphere: the 7-vertex torus, f = (7, 21, 14), h = (1, 4, 10, -1) (hand computation)
+    assert h_vector(catalog.complex("torus-7")) == (1, 4, 10, -1)
+
+
+def test_sphere_and_ball_tests_in_the_claim_language():
+    # the boundary of the 4-simplex is a 3-sphere, the 3-simplex a 3-ball, the
+    # projective plane neither (Munkres 1984, §35; common practice)
+    assert _language("is_sphere(K)", catalog.complex("simplex-boundary-4"))
+    assert _language("is_ball(K)", Complex.from_facets([[1, 2, 3, 4]]))
+    assert not _language("is_sphere(K) or is_ball(K)", catalog.complex("projective-plane-6"))
+    assert _language("h_vector(K) == [1, 1, 1, 1, 1]", catalog.complex("simplex-boundary-4"))

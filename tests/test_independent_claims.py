@@ -67,7 +67,7 @@ STATEMENTS = [
     "zeta(connection(K), -1)", "zeta(connection(K), 0)", "zeta(green(K) + identity(K), 1)",
     "betti(K)", "betti(K, 1)", "betti(K, 1, 2)", "betti(K, 0, 3)", "betti(K, 7)",
     "betti(K, 1, 2 ** 127 - 1)", "homology(K)", "homology(K)[0]", "torsion(K, 1)",
-    "torsion(K, 0)", "torsion(K, 9)",
+    "torsion(K, 0)", "torsion(K, 9)", "h_vector(K)", "is_sphere(K)", "is_ball(K)",
     "is_manifold(K)", "is_manifold_with_boundary(K)", "is_closed_manifold(K)",
     "curvature(K, vertices(K)[0])", "sum(curvature(K, v) for v in vertices(K))",
     "index(K, vertices(K)[-1])", "sum(index(K, v) * index(K, v) for v in vertices(K))",

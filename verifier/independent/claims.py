@@ -63,7 +63,7 @@ from .matrix import Matrix
 __all__ = [
     "IMPLEMENTATIONS", "NotDecided", "evaluate_claim_independently", "recheck",
     "recheck_run", "RecheckRun", "RecheckError", "RecheckInputError",
-    "f_vector", "euler", "wu", "connection", "green", "boundary_matrix", "dirac", "hodge",
+    "f_vector", "h_vector", "euler", "wu", "connection", "green", "boundary_matrix", "dirac", "hodge",
     "signless_hodge", "betti", "homology", "torsion", "use_witnesses", "curvature", "poincare_hopf_index", "star", "closed_star",
     "link", "unit_sphere", "boundary", "interior", "refine", "join", "cone", "suspension",
     "product", "skeleton", "union", "is_sphere", "is_ball", "is_closed_manifold",
@@ -158,6 +158,33 @@ def _is_pure(K: Complex) -> bool:
 
 
 # ------------------------------------------------------------------ counting
+def h_vector(K: Complex) -> tuple[int, ...]:
+    """(h_0, ..., h_d), d = dim K + 1, read off the polynomial identity
+    sum_k h_k x^(d-k) = sum_i f_(i-1) (x - 1)^(d-i)  (f_(-1) = 1).
+
+    Parameters: ``K`` -- a complex.  Returns: a tuple of d + 1 ints.
+
+    >>> h_vector(Complex.from_facets([[1, 2], [2, 3], [1, 3]]))
+    (1, 1, 1)
+
+    Notes: the right side is expanded as polynomials (coefficient lists), a different
+    computation from the binomial sum of the main backend.
+    Reference: R. P. Stanley, Combinatorics and Commutative Algebra, 2nd ed., Birkhauser
+    1996, ch. II.2.
+    """
+    f = [1] + list(f_vector(K))
+    d = len(f) - 1
+    total = [0] * (d + 1)                     # coefficients of x^0 .. x^d
+    for i, count in enumerate(f):
+        power = [1]                           # (x - 1)^(d - i), lowest degree first
+        for _ in range(d - i):
+            power = [(power[j - 1] if j > 0 else 0) - (power[j] if j < len(power) else 0)
+                     for j in range(len(power) + 1)]
+        for j, c in enumerate(power):
+            total[j] += count * c
+    return tuple(total[d - k] for k in range(d + 1))
+
+
 def f_vector(K: Complex) -> tuple[int, ...]:
     """(f_0, ..., f_d): the number of simplices of each dimension.
 
@@ -1225,6 +1252,8 @@ IMPLEMENTATIONS = {
     "homology": homology, "torsion": torsion,
     "is_manifold": is_manifold, "is_manifold_with_boundary": is_manifold_with_boundary,
     "is_closed_manifold": is_closed_manifold, "curvature": curvature,
+    "is_sphere": lambda K: is_sphere(K), "is_ball": lambda K: is_ball(K),
+    "h_vector": h_vector,
     "index": poincare_hopf_index, "star": star, "closed_star": closed_star, "link": link,
     "unit_sphere": unit_sphere, "boundary": boundary, "interior": interior,
     "refine": refine, "join": join, "cone": cone, "suspension": suspension,

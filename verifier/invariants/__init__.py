@@ -38,7 +38,8 @@ References
 from __future__ import annotations
 
 from .connection import connection, fredholm, green, green_by_inversion, green_many
-from .counting import dim, euler, f_vector, facets, omega, simplices, size, vertices, wu
+from .counting import (dim, euler, f_vector, facets, h_vector, omega, simplices, size,
+                       vertices, wu)
 from .geometry import curvature, index, indices
 from .hodge import (boundary_matrix, dirac, exterior_derivative, hodge, signless_dirac,
                     signless_hodge)
@@ -50,7 +51,8 @@ from .spectra import (charpoly, det, is_reciprocal, kernel_dim, multiplicity, ne
                       positive, rank, signature, trace, zeta)
 
 __all__ = [
-    "simplices", "vertices", "facets", "omega", "dim", "size", "f_vector", "euler", "wu",
+    "simplices", "vertices", "facets", "omega", "dim", "size", "f_vector", "h_vector",
+    "euler", "wu",
     "connection", "green", "green_many", "green_by_inversion", "fredholm", "boundary_matrix",
     "exterior_derivative", "dirac", "hodge", "signless_dirac", "signless_hodge", "betti",
     "homology", "torsion", "homology_witness", "morse_reduction", "format_homology",

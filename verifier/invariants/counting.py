@@ -13,12 +13,14 @@ References
 from __future__ import annotations
 
 from collections.abc import Iterable
+from math import comb
 
 import numpy as np
 
 from ..complex import Complex
 
-__all__ = ["omega", "simplices", "vertices", "facets", "dim", "size", "f_vector", "euler", "wu"]
+__all__ = ["omega", "simplices", "vertices", "facets", "dim", "size", "f_vector", "h_vector",
+           "euler", "wu"]
 
 def omega(x) -> int:
     """The sign (-1)^dim x of a simplex x (a tuple of vertices).
@@ -112,6 +114,28 @@ def _star_euler(K: Complex) -> np.ndarray:
     faces, cofaces = K.containments()
     chi = np.bincount(faces, weights=_omega_vector(K)[cofaces], minlength=len(K.simplices))
     return np.rint(chi).astype(np.int64)   # integer sums of +-1 below 2^53: exact
+
+
+def h_vector(K: Complex) -> tuple[int, ...]:
+    """(h_0, ..., h_d), d = dim K + 1: the h-vector of K.
+
+    Definition: with f_(-1) = 1, h_k = sum_(i=0..k) (-1)^(k-i) C(d-i, k-i) f_(i-1); in
+    generating-function form sum_k h_k x^(d-k) = sum_i f_(i-1) (x - 1)^(d-i).  For a
+    simplicial sphere the Dehn-Sommerville relations read h_k = h_(d-k), and the sum of the
+    h_k is the number of facets of a pure complex [DS].
+
+    >>> h_vector(Complex.from_facets([[1, 2], [2, 3], [1, 3]]))     # a triangle's boundary
+    (1, 1, 1)
+    >>> h_vector(Complex.from_facets([[1, 2, 3], [1, 2, 4], [1, 3, 4], [2, 3, 4]]))
+    (1, 1, 1, 1)
+
+    References: [DS] R. P. Stanley, Combinatorics and Commutative Algebra, 2nd ed.,
+    Birkhauser 1996, ch. II.2; G. M. Ziegler, Lectures on Polytopes, Springer 1995, §8.3.
+    """
+    f = (1,) + tuple(K.f_vector)
+    d = len(f) - 1
+    return tuple(sum((-1) ** (k - i) * comb(d - i, k - i) * f[i] for i in range(k + 1))
+                 for k in range(d + 1))
 
 
 def wu(K: Complex) -> int:
