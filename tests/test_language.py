@@ -85,7 +85,7 @@ def test_counterexample_values_and_witness():
     ("[x for x in simplices(K)]", "generators are allowed only inside all(), any(), sum() and count()"),
     ("'text'", "literal 'text' is not allowed; only integers and True/False"),
     ("1.5", "1.5 is a floating-point number; write exact rationals such as 3/2"),
-    ("euler(K, 1)", "euler takes 1 argument, got 2: euler(x: complex|set|list) -> number"),
+    ("euler(K, 1)", "euler takes 1 argument, got 2: euler(x: complex|set|list[simplex]) -> number"),
     ("gren(K)", "unknown function 'gren'; did you mean 'green'?"),
     ("euler(x=K)", "euler: keyword arguments are not allowed"),
     ("green(K) + 1", "operator '+' does not apply to matrix and number"),

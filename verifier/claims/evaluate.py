@@ -127,6 +127,9 @@ def _power(base, exponent, ctx: Context, node: Node):
             raise LimitExceeded(f"matrix power {exponent} exceeds the limit "
                                 f"{limits.max_matrix_power}", "max_matrix_power", node.place())
         try:
+            if _order(base) >= STOPPABLE_ORDER:
+                return Indexed(stoppable(pow, (base.matrix, exponent), ctx), base.rows,
+                               base.cols)
             return Indexed(base.matrix ** exponent, base.rows, base.cols)
         except ArithmeticError as error:
             raise EvaluationError(f"matrix power {exponent}: {error}", node.place()) from None
@@ -196,6 +199,10 @@ def _binop(op, a, b, ctx, node):
             if op == "-":
                 return Indexed(a.matrix - b.matrix, rows, cols)
             if op in ("*", "@"):
+                if max(_order(a), _order(b)) >= STOPPABLE_ORDER:
+                    import operator
+                    return Indexed(stoppable(operator.matmul, (a.matrix, b.matrix), ctx),
+                                   a.rows, b.cols)
                 return Indexed(a.matrix @ b.matrix, a.rows, b.cols)
         except ArithmeticError as error:
             raise EvaluationError(f"matrix {op}: {error}", node.place()) from None
@@ -311,6 +318,7 @@ class _TimeUp(BaseException):
 
 
 _TIMER = {"depth": 0}
+RING_AGAIN = 0.5      # seconds between rings once the deadline has passed
 
 
 @contextmanager
@@ -336,24 +344,88 @@ def time_limit(deadline: float | None, seconds: float | None):
     if remaining <= 0:
         raise LimitExceeded(f"evaluation took longer than {seconds} s", "seconds")
 
+    armed = [True]
+
     def ring(signum, frame):
-        raise _TimeUp()
+        if armed[0]:
+            raise _TimeUp()
 
     started = time.monotonic()
     previous_handler = signal.signal(signal.SIGALRM, ring)
-    previous_timer = signal.setitimer(signal.ITIMER_REAL, remaining)
+    # rings again every half second: an exception raised where Python ignores it (a
+    # garbage-collector callback, a destructor) must not cancel the limit
+    previous_timer = signal.setitimer(signal.ITIMER_REAL, remaining, RING_AGAIN)
     _TIMER["depth"] = 1
     try:
         yield
     except _TimeUp:
+        armed[0] = False
         raise LimitExceeded(f"evaluation took longer than {seconds} s", "seconds") from None
     finally:
+        armed[0] = False
         _TIMER["depth"] = 0
         signal.setitimer(signal.ITIMER_REAL, 0)
         signal.signal(signal.SIGALRM, previous_handler)
         if previous_timer[0] > 0:    # someone else's timer: give it back what is left
             left = previous_timer[0] - (time.monotonic() - started)
             signal.setitimer(signal.ITIMER_REAL, max(left, 0.001), previous_timer[1])
+
+
+STOPPABLE_ORDER = 400   # matrices of this order or more are worked on in a child process
+
+
+def _order(value) -> int:
+    """The order of the matrix (or of the complex's matrices) a call would work on."""
+    from ..complex import Complex
+    if isinstance(value, Indexed):
+        return max(value.matrix.shape)
+    if hasattr(value, "matrix") and hasattr(value.matrix, "shape"):   # a lazy charpoly
+        return max(value.matrix.shape)
+    if isinstance(value, Complex):
+        return len(value.simplices)
+    return 0
+
+
+def stoppable(function, args: tuple, ctx: Context):
+    """``function(*args)``, in a forked child process when the evaluation is under the
+    interval timer, so that a long call inside compiled code (exact linear algebra of a
+    large matrix) is stopped at the deadline like anything else: the timer interrupts
+    the wait, and the child is killed.  Elsewhere, a plain call."""
+    import multiprocessing as mp
+    if not _TIMER["depth"] or "fork" not in mp.get_all_start_methods():
+        return function(*args)
+    context = mp.get_context("fork")
+    receive, send = context.Pipe(duplex=False)
+
+    def child():
+        signal.signal(signal.SIGALRM, signal.SIG_IGN)
+        try:
+            send.send(("ok", function(*args)))
+        except BaseException as error:   # noqa: BLE001 - handed to the parent
+            try:
+                send.send(("raised", error))
+            except Exception:            # noqa: BLE001 - an error that does not pickle
+                send.send(("raised", EvaluationError(_message(error))))
+
+    process = context.Process(target=child, daemon=True)
+    process.start()
+    send.close()
+    try:
+        try:
+            status, value = receive.recv()
+        except EOFError:
+            process.join(5)
+            raise LimitExceeded("the computation ran out of memory"
+                                + (f" ({ctx.limits.memory} MB one case may use)"
+                                   if ctx.limits.memory else ""), "memory") from None
+    finally:
+        if process.is_alive():
+            process.kill()
+        process.join(5)
+        receive.close()
+    if status == "raised":
+        raise value
+    return value
 
 
 def _what(node: Node) -> str:
@@ -398,7 +470,19 @@ def evaluate(node: Node, env: dict, ctx: Context):
     and its subclasses); the time limit holds also inside long library calls.
     """
     with time_limit(ctx.deadline, ctx.limits.seconds):
-        return _eval(node, env, ctx)
+        try:
+            return _eval(node, env, ctx)
+        except RecursionError:
+            raise LimitExceeded("recursion too deep", "max_depth", node.place()) from None
+        except MemoryError:
+            raise LimitExceeded(_memory_text(ctx.limits), "memory", node.place()) from None
+
+
+def _memory_text(limits: Limits) -> str:
+    if limits.memory:
+        return (f"the case needed more than the {limits.memory} MB one case may use "
+                "(--case-memory)")
+    return "the case needed more memory than this process may use"
 
 
 def _eval(node: Node, env: dict, ctx: Context):
@@ -422,9 +506,16 @@ def _dispatch(node: Node, env: dict, ctx: Context):
         implementation = ctx.table[node.function.name]
         _guard_size(node, args, ctx)
         try:
+            heavy = not node.function.combinatorial and \
+                max(map(_order, args), default=0) >= STOPPABLE_ORDER
             if node.function.name == "is_reciprocal":
-                return implementation(*args, ctx=ctx)
-            result = implementation(*args)
+                if not heavy:
+                    return implementation(*args, ctx=ctx)
+                value, evidence, bound = stoppable(_reciprocal_with_evidence,
+                                                   (implementation, args, ctx), ctx)
+                ctx.note_evidence(evidence, bound)
+                return value
+            result = stoppable(implementation, args, ctx) if heavy else implementation(*args)
             if node.function.evidence != "exact" and (
                     node.function.returns != "number|ball" or isinstance(result, Enclosure)):
                 ctx.note_evidence(node.function.evidence)
@@ -482,6 +573,12 @@ def _dispatch(node: Node, env: dict, ctx: Context):
     if kind == "quant":
         return _quantifier(node, env, ctx)
     raise AssertionError(f"unknown node kind {kind}")  # our bug, not the user's
+
+
+def _reciprocal_with_evidence(implementation, args, ctx):
+    """is_reciprocal in a child process: its value and the evidence it noted."""
+    value = implementation(*args, ctx=ctx)
+    return value, ctx.evidence, ctx.error_bound
 
 
 def _message(error: Exception) -> str:
@@ -668,8 +765,12 @@ def evaluate_claim(statement: Node, env: dict, ctx: Context | None = None) -> Ou
     with time_limit(ctx.deadline, ctx.limits.seconds):
         try:
             return _evaluate_claim(statement, env, ctx)
-        except (ClaimError, RecursionError, MemoryError):
+        except ClaimError:
             raise
+        except RecursionError:
+            raise LimitExceeded("recursion too deep", "max_depth", statement.place()) from None
+        except MemoryError:
+            raise LimitExceeded(_memory_text(ctx.limits), "memory", statement.place()) from None
         except Exception as error:   # noqa: BLE001 - e.g. writing out a value
             raise translate(error, statement) from None
 

@@ -96,7 +96,7 @@ TABLE: list[Function] = [
     Function("omega", (P("x", S),), N, "invariants.omega", "definition", **CB),
     Function("range", (P("n", N),), "list[number]", None, "definition",
              "The integers 0, 1, ..., n-1 (for sums over dimensions).", **CB),
-    Function("euler", (P("x", C, "set", "list"),), N, "invariants.euler",
+    Function("euler", (P("x", C, "set", "list[simplex]"),), N, "invariants.euler",
              "L. Euler (1758); H. Poincare (1895)", **CB),
     Function("wu", (P("K", C),), N, "invariants.wu",
              "W. Wu, Colloq. Math. 7 (1959); O. Knill, arXiv:1601.04533 (2016)", **CB),
