@@ -391,38 +391,50 @@ def stoppable(function, args: tuple, ctx: Context):
     interval timer, so that a long call inside compiled code (exact linear algebra of a
     large matrix) is stopped at the deadline like anything else: the timer interrupts
     the wait, and the child is killed.  Elsewhere, a plain call."""
-    import multiprocessing as mp
-    if not _TIMER["depth"] or "fork" not in mp.get_all_start_methods():
+    import os
+    import pickle
+    if not _TIMER["depth"] or not hasattr(os, "fork"):
         return function(*args)
-    context = mp.get_context("fork")
-    receive, send = context.Pipe(duplex=False)
-
-    def child():
-        signal.signal(signal.SIGALRM, signal.SIG_IGN)
-        try:
-            send.send(("ok", function(*args)))
-        except BaseException as error:   # noqa: BLE001 - handed to the parent
-            try:
-                send.send(("raised", error))
-            except Exception:            # noqa: BLE001 - an error that does not pickle
-                send.send(("raised", EvaluationError(_message(error))))
-
-    process = context.Process(target=child, daemon=True)
-    process.start()
-    send.close()
+    read_end, write_end = os.pipe()
     try:
+        pid = os.fork()
+    except (OSError, MemoryError):       # no memory left under the cap to start it
+        os.close(read_end)
+        os.close(write_end)
+        raise MemoryError() from None
+    if pid == 0:                                            # the child
+        code = 0
         try:
-            status, value = receive.recv()
-        except EOFError:
-            process.join(5)
-            raise LimitExceeded("the computation ran out of memory"
-                                + (f" ({ctx.limits.memory} MB one case may use)"
-                                   if ctx.limits.memory else ""), "memory") from None
+            signal.signal(signal.SIGALRM, signal.SIG_IGN)
+            os.close(read_end)
+            try:
+                payload = pickle.dumps(("ok", function(*args)))
+            except BaseException as error:   # noqa: BLE001 - handed to the parent
+                try:
+                    payload = pickle.dumps(("raised", error))
+                except Exception:            # noqa: BLE001 - an error that does not pickle
+                    payload = pickle.dumps(("raised", EvaluationError(_message(error))))
+            with os.fdopen(write_end, "wb") as out:
+                out.write(payload)
+        except BaseException:                # noqa: BLE001 - nothing may escape a child
+            code = 1
+        finally:
+            os._exit(code)
+    os.close(write_end)
+    try:
+        with os.fdopen(read_end, "rb") as source:
+            data = source.read()
     finally:
-        if process.is_alive():
-            process.kill()
-        process.join(5)
-        receive.close()
+        try:
+            os.kill(pid, signal.SIGKILL)
+        except ProcessLookupError:
+            pass
+        os.waitpid(pid, 0)
+    if not data:
+        raise LimitExceeded("the computation ran out of memory"
+                            + (f" ({ctx.limits.memory} MB one case may use)"
+                               if ctx.limits.memory else ""), "memory")
+    status, value = pickle.loads(data)
     if status == "raised":
         raise value
     return value
@@ -688,10 +700,12 @@ def _bindings(loops, env, ctx, index=0):
 
 def _quantifier(node: Node, env: dict, ctx: Context):
     name = node.value
-    if not node.loops:  # sum of a list or of a matrix
+    if not node.loops:  # sum, prod, min or max of a list; sum of a matrix
         value = _eval(node.args[0], env, ctx)
         if isinstance(value, Indexed):
             return value.matrix.total()
+        if name != "sum":
+            return _fold(name, _iterate(value, node), node, ctx)
         total = 0
         for item in _iterate(value, node):
             if not _is_number(item):
@@ -699,6 +713,9 @@ def _quantifier(node: Node, env: dict, ctx: Context):
             total += item
         return _normal(total)
     element = node.args[0]
+    if name in ("prod", "min", "max"):
+        return _fold(name, (_eval(element, inner, ctx)
+                            for inner in _bindings(node.loops, env, ctx)), node, ctx)
     if name in ("all", "any"):
         wanted = name == "any"           # the value that decides the quantifier
         pending = None
@@ -724,6 +741,27 @@ def _quantifier(node: Node, env: dict, ctx: Context):
         value = _eval(element, inner, ctx)
         count += 1 if (value is True or (value is not False and value is not None)) else 0
     return count
+
+
+def _fold(name: str, items, node: Node, ctx: Context):
+    """The product, minimum or maximum of exact numbers (the empty product is 1; the
+    minimum or maximum of no items is an error); products obey the bit limit."""
+    result = None
+    for item in items:
+        if not _is_number(item):
+            raise EvaluationError(f"{name} of {_kind(item)} items: give numbers", node.place())
+        if result is None:
+            result = item
+        elif name == "prod":
+            _check_bits(result, item, "*", ctx, node)
+            result = result * item
+        else:
+            result = min(result, item) if name == "min" else max(result, item)
+    if result is None:
+        if name == "prod":
+            return 1
+        raise EvaluationError(f"{name} of no items", node.place())
+    return _normal(result)
 
 
 def _first_difference(a: Indexed, b: Indexed) -> dict | None:

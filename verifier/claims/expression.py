@@ -6,7 +6,8 @@ rebuilt as a tree of our own nodes after a whitelist check; nothing is ever hand
 
 * integer and boolean literals (``1/3`` is an exact rational, never a float);
 * names: the bound variables of the claim and the functions of the registry
-  (:mod:`verifier.claims.functions`), plus the quantifiers ``all any sum count``;
+  (:mod:`verifier.claims.functions`), plus the quantifiers ``all any sum count prod min
+  max``;
 * ``+ - * / ** @`` (``*`` and ``@`` multiply matrices), ``%`` and ``//`` on integers,
   ``&`` and ``|`` (intersection and union of sets of simplices), ``== != < <= > >=``, ``and or not``, ``in``, ``not in``,
   ``a if c else b``, indexing ``M[x, y]`` / ``v[i]``, lists and tuples;
@@ -273,6 +274,14 @@ class _Builder:
                             "matrix)", node)
         arg = node.args[0]
         if not isinstance(arg, ast.GeneratorExp):
+            if name in ("prod", "min", "max"):
+                inner = self.build(arg, depth)
+                item = element_type(inner.type) if inner.type.startswith(("list[", "tuple[")) \
+                    else None
+                if item != "number" and inner.type != EMPTY:
+                    raise ExpressionError(f"{name} of a {inner.type}: give a generator or a "
+                                          "list of numbers", inner.place())
+                return self.new("quant", node, type="number", value=name, args=[inner])
             if name == "sum":
                 inner = self.build(arg, depth)
                 if inner.type == "matrix" or inner.type == EMPTY:
@@ -314,6 +323,9 @@ class _Builder:
         elif name == "sum":
             self.expect(element, ("number", "ball"), "sum")
             kind = element.type if element.type == "ball" else "number"
+        elif name in ("prod", "min", "max"):
+            self.expect(element, ("number",), name)
+            kind = "number"
         else:
             kind = "number"
         return self.new("quant", node, type=kind, value=name, args=[element], loops=loops)

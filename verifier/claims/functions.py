@@ -206,12 +206,16 @@ TABLE: list[Function] = [
              "Disjoint union of two complexes, or union of two sets of simplices.", **CB),
 ]
 
-# all/any/sum/count take generators: they are syntax, listed here for `verifier functions`
+# all/any/sum/count/prod/min/max take generators: they are syntax, listed here for
+# `verifier functions`
 QUANTIFIERS = {
     "all": "True when the condition holds for every generated item: all(P for x in S).",
     "any": "True when the condition holds for some generated item.",
     "sum": "Sum of generated numbers, of a list, or of all entries of a matrix.",
     "count": "Number of generated items (after if-filters) whose value is true.",
+    "prod": "Product of generated numbers or of a list of numbers (1 for no items).",
+    "min": "Least of generated numbers or of a list of numbers.",
+    "max": "Greatest of generated numbers or of a list of numbers.",
 }
 
 FUNCTIONS: dict[str, Function] = {f.name: f for f in TABLE}
