@@ -72,6 +72,8 @@ def _worker_main(function, tasks, results, memory=None):
     from threadpoolctl import threadpool_limits
     threadpool_limits(1)
     results.put((-1, os.getpid(), None, None))   # starts the queue's thread before any cap
+    if memory:   # the libraries a case may need are loaded first: the cap is the case's
+        from ..claims import backend  # noqa: F401
     _limit_memory(memory)
     parent = os.getppid()
     while True:

@@ -91,6 +91,8 @@ def _in_child(function, args: tuple, seconds: float, memory: int | None):
 
     def child():
         try:
+            if memory:      # libraries first: the cap is the work's, as in a worker
+                from ..claims import backend  # noqa: F401
             _limit_memory(memory)
             send.send(("ok", function(*args)))
         except MemoryError:
