@@ -485,9 +485,15 @@ def parse(text: str, variables: dict[str, str], where: Place | None = None) -> N
             raise ExpressionError("expression too deeply nested", Place(None, 1, 1)) from None
     except ExpressionError as error:
         if where is not None:
-            inner = error.place or Place(None, 1, 1)
-            line = (where.line or 1) + (inner.line or 1) - 1
-            column = ((where.column or 1) + (inner.column or 1) - 1
-                      if (inner.line or 1) == 1 else inner.column)
-            error.place = Place(where.file, line, column)
+            error.place = in_file(error.place, where)
         raise
+
+
+def in_file(inner: Place | None, where: Place) -> Place:
+    """A place inside an expression (line and column from 1) as a place in the file whose
+    expression starts at ``where``."""
+    inner = inner or Place(None, 1, 1)
+    line = (where.line or 1) + (inner.line or 1) - 1
+    column = ((where.column or 1) + (inner.column or 1) - 1
+              if (inner.line or 1) == 1 else inner.column)
+    return Place(where.file, line, column)

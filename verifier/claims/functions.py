@@ -40,6 +40,8 @@ class Function:
     combinatorial: bool = False  # no exact linear algebra inside
     evidence: str = "exact"      # the weakest evidence its results can carry (SPEC §6);
                                  # "certified" results are enclosures or certified counts
+    always: bool = False         # True when every result carries that weakest evidence
+                                 # (then a claim must allow it: checked when it loads)
     returns_by_count: tuple = ()  # (number of arguments, result type) where the result
                                   # type depends on how many arguments are given
 
@@ -138,13 +140,15 @@ TABLE: list[Function] = [
              evidence="certified"),
     # certified numerics (enclosures with exact rational ends; SPEC §6)
     Function("eigenvalue_enclosures", (P("A", M),), "list[ball]", "exact.eigenvalue_enclosures",
-             "F. Johansson, IEEE Trans. Comput. 66 (2017) 1281-1292", evidence="certified"),
+             "F. Johansson, IEEE Trans. Comput. 66 (2017) 1281-1292", evidence="certified",
+             always=True),
     Function("zeros_in_box", (P("A", M), P("re_lo", N), P("re_hi", N), P("im_lo", N),
                               P("im_hi", N)), N, "exact.zeros_in_box",
              "argument principle; P. Henrici, Applied and Computational Complex Analysis I, "
-             "§4.6", evidence="certified"),
+             "§4.6", evidence="certified", always=True),
     Function("zeros_on_axis", (P("A", M), P("t_lo", N), P("t_hi", N)), N,
-             "exact.zeros_on_axis", "O. Knill, arXiv:1312.4239 (2013)", evidence="certified"),
+             "exact.zeros_on_axis", "O. Knill, arXiv:1312.4239 (2013)", evidence="certified",
+             always=True),
     Function("re", (P("z", N, "ball"),), "number|ball", None, "definition",
              "The real part of a number or of a certified complex number."),
     Function("im", (P("z", N, "ball"),), "number|ball", None, "definition",
@@ -158,7 +162,7 @@ TABLE: list[Function] = [
     Function("critical_points", (P("V", C, M), P("T", N)), "list[list[number]]",
              "energy.critical_points", "O. Knill, arXiv:2105.07553 (2021); Lagrange conditions",
              "Critical points of F_T on the probability simplex, lowest F first (floating "
-             "point, rounded to 6 decimals: evidence float).", evidence="float"),
+             "point, rounded to 6 decimals: evidence float).", evidence="float", always=True),
     # topology
     Function("betti", (P("K", C), P("k", N, default=None), P("p", N, default=0)),
              "list[number]", "invariants.betti", "J. R. Munkres (1984) §5, §7, §11; Morse "

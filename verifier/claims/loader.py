@@ -18,7 +18,7 @@ from pathlib import Path
 
 from ..userfiles import UnreadableFile, read_text
 from .errors import ClaimError, ClaimFileError, ExpressionError, Place
-from .expression import Node, parse
+from .expression import Node, in_file, parse
 
 __all__ = ["Claim", "FamilyRef", "load_file", "load_text", "load_paths", "CLAIM_KEYS", "EVIDENCE_LEVELS"]
 
@@ -345,6 +345,14 @@ def _claim(i: int, table: dict, positions: _Positions, path: Path, make_family) 
         if where.type not in ("bool", "any"):
             raise ExpressionError(f"'where' must be true or false, but it gives a {where.type}",
                                   positions.expression_place(i, "where", ""))
+    for key, text, node in (("statement", statement_text, statement),
+                            ("where", where_text, where)):
+        if node is not None:
+            try:
+                _check_evidence(node, evidence)
+            except ExpressionError as error:
+                error.place = in_file(error.place, positions.expression_place(i, key, text))
+                raise
     return Claim(
         name=name,
         title=_text(table, "title", i, positions, required=False, default=name),
@@ -354,6 +362,24 @@ def _claim(i: int, table: dict, positions: _Positions, path: Path, make_family) 
         over=refs, max_cases=max_cases, file=str(path), place=positions.place(i),
         notes=_text(table, "notes", i, positions, required=False, default=""),
         variables=variables)
+
+
+def _check_evidence(node, evidence: str) -> None:
+    """Refuse, when the claim loads, a function whose every result is weaker than the
+    evidence the claim asks for (a certified-only function in an exact claim would fail
+    in every case)."""
+    order = EVIDENCE_LEVELS              # strongest first
+    if node.kind == "call" and node.function.always and \
+            order.index(node.function.evidence) > order.index(evidence):
+        raise ExpressionError(
+            f"{node.function.name} gives {node.function.evidence} values, weaker than the "
+            f"claim's evidence = \"{evidence}\"; write evidence = "
+            f"\"{node.function.evidence}\" in the claim", node.place())
+    for child in node.args:
+        _check_evidence(child, evidence)
+    for _variable, iterable, conditions in getattr(node, "loops", None) or ():
+        for part in (iterable, *conditions):
+            _check_evidence(part, evidence)
 
 
 def load_paths(paths, make_family=None) -> list[Claim]:
