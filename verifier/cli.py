@@ -860,7 +860,8 @@ def build_parser() -> argparse.ArgumentParser:
                      help="also let `file` families read data files inside DIR (by default "
                           "only inside each claim file's folder); may be repeated")
     run.add_argument("--case-memory", type=_integer, default=None, metavar="MB",
-                     help="memory one case may use on a worker, in megabytes (default: no cap)")
+                     help="memory one case may use on a worker, in megabytes (default: 3/4 "
+                          "of the machine's memory shared by the workers and the client)")
     run.add_argument("--quiet", action="store_true", help="no progress bar")
     run.add_argument("--again", metavar="RUN", default=None,
                      help="evaluate again only the failing and unsettled cases of the earlier "
