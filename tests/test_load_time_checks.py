@@ -45,3 +45,13 @@ def test_a_certified_function_loads_in_a_certified_claim():
 def test_a_float_function_needs_float_evidence_also_in_where():
     with pytest.raises(ClaimError, match="critical_points gives float values"):
         load("euler(K) == 1", 'where = "size(critical_points(K, 1)) > 0"')
+
+
+def test_a_claim_without_expect_is_expected_to_hold_and_the_readme_says_so():
+    # issue 13: the default must not be silent; the README's claim-file section states it
+    from pathlib import Path
+    (claim,) = load("euler(K) >= 0")
+    assert claim.expect == "holds"
+    readme = " ".join(Path(__file__).resolve().parent.parent.joinpath("README.md")
+                      .read_text(encoding="utf-8").split())
+    assert "a claim without `expect` is expected to hold" in readme

@@ -200,3 +200,26 @@ def test_the_report_shows_the_relabelled_and_recognised_counterexample(store):
                  certificates_dir=folder / "certs")
     text = (folder / "cx" / "report.md").read_text()
     assert "- K relabelled: [[1, 2, 3], [1, 2, 4]]" in text
+
+
+def test_a_closed_surface_is_drawn_in_space_in_the_latex_export(tmp_path):
+    # the 6-vertex projective plane has the complete graph K_6 as 1-skeleton, which is not
+    # planar (Kuratowski; common practice): the TikZ picture is the 3-dimensional view
+    # (every triangle drawn, back to front, half-transparent) and it compiles
+    import shutil
+    import subprocess
+
+    from verifier.families import catalog
+    from verifier.report import _tikz
+
+    picture = _tikz(catalog.complex("projective-plane-6").facet_labels())
+    assert "3-dimensional view" in picture and picture.count("\\filldraw") == 10
+    flat = _tikz([[1, 2, 3], [1, 3, 4]])
+    assert "3-dimensional view" not in flat
+    pdflatex = shutil.which("pdflatex")
+    assert pdflatex is not None, "pdflatex is required: run `make system-deps`"
+    (tmp_path / "p.tex").write_text("\\documentclass{article}\\usepackage{tikz}"
+                                    "\\begin{document}" + picture + "\\end{document}\n")
+    done = subprocess.run([pdflatex, "-interaction=nonstopmode", "-halt-on-error", "p.tex"],
+                          cwd=tmp_path, capture_output=True, text=True, timeout=180)
+    assert done.returncode == 0, done.stdout[-2000:]

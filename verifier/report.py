@@ -1180,11 +1180,51 @@ def _positions(K) -> list[tuple[float, float]]:
     return [(math.cos(a), math.sin(a)) if n > 1 else (0.0, 0.0) for a in angles]
 
 
+def _tikz_in_space(K) -> str:
+    """A TikZ picture of a 2-complex whose edges cannot be drawn flat without crossings
+    (a closed surface other than the sphere): the vertices placed in space as in the
+    3-dimensional view of :mod:`verifier.drawing`, seen from a fixed direction, the
+    triangles filled half-transparent from the back to the front."""
+    from .drawing import space_layout
+
+    pos = space_layout(K)
+    azimuth, elevation = math.radians(35), math.radians(25)
+    right = (math.cos(azimuth), math.sin(azimuth), 0.0)
+    up = (-math.sin(elevation) * math.sin(azimuth), math.sin(elevation) * math.cos(azimuth),
+          math.cos(elevation))
+    toward = (math.cos(elevation) * math.sin(azimuth), -math.cos(elevation) * math.cos(azimuth),
+              math.sin(elevation))
+
+    def dot(p, q):
+        return sum(a * b for a, b in zip(p, q))
+
+    flat = [(2.5 * dot(p, right), 2.5 * dot(p, up)) for p in pos]
+    depth = [dot(p, toward) for p in pos]
+    lines = ["\\begin{tikzpicture}"]
+    for i, (x, y) in enumerate(flat):
+        lines.append(f"  \\coordinate (v{i}) at ({x:.4f},{y:.4f});")
+    triangles = sorted((s for s in K.simplices if len(s) == 3),
+                       key=lambda s: sum(depth[v] for v in s))
+    for s in triangles:
+        lines.append("  \\filldraw[fill=blue!30, fill opacity=0.55, draw=black!60] "
+                     + " -- ".join(f"(v{v})" for v in s) + " -- cycle;")
+    for i, label in enumerate(K.labels):
+        lines.append(f"  \\node[circle, draw, fill=white, inner sep=1.2pt, font=\\scriptsize] at "
+                     f"(v{i}) {{{latex_escape(label)}}};")
+    lines.append("\\end{tikzpicture}")
+    lines.append("\\par\\emph{A 3-dimensional view (a drawing): the edges of this complex "
+                 "cannot be drawn in the plane without crossings.}")
+    return "\n".join(lines)
+
+
 def _tikz(facets) -> str:
     """A TikZ picture of a complex: filled triangles, edges, labelled vertices."""
     from .complex import Complex
 
     K = Complex.from_facets(facets)
+    from .drawing import needs_space
+    if needs_space(K):
+        return _tikz_in_space(K)
     pos = _positions(K)
     if pos:
         xs, ys = [p[0] for p in pos], [p[1] for p in pos]
