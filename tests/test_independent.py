@@ -324,3 +324,30 @@ def test_worker_reports_bad_tasks_by_position():
 def test_timeout_becomes_an_independent_check_error():
     with pytest.raises(IndependentCheckError, match=r"exceeded 0\.001 s on a batch of 1 task"):
         recompute([{"facets": [[1, 2, 3]], "compute": ["det"]}], timeout=0.001)
+
+
+def test_independent_values_travel_between_processes():
+    # the evaluator runs heavy linear algebra in a forked child and pickles its result
+    # back (verifier.claims.evaluate.stoppable); the independent backend's immutable
+    # Matrix and Poly must survive that (common practice, no source)
+    import pickle
+
+    from verifier.independent.matrix import Matrix, Poly
+    M = Matrix.from_rows([[1, 2], [3, 4]])
+    assert pickle.loads(pickle.dumps(M)).rows() == M.rows()
+    p = Poly([1, 0, -1])
+    assert pickle.loads(pickle.dumps(p)).coeffs == p.coeffs
+
+
+def test_a_large_green_function_is_re_evaluated_independently():
+    # the energy theorem sum(g) = chi (Knill, Linear Algebra Appl. 600 (2020)) on the torus
+    # refined twice (1,512 simplices): large enough that the evaluator computes in a child
+    # process; chi(torus) = 0 (catalog record)
+    from verifier.families import catalog
+    from verifier.independent.claims import evaluate_claim_independently
+    from verifier.operations import refine
+
+    K = refine(catalog.complex("torus-7"), 2)
+    outcome = evaluate_claim_independently("sum(green(K)) == euler(K)",
+                                           {"K": K.facet_labels()})
+    assert outcome.get("holds") is True, outcome

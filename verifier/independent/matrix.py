@@ -97,6 +97,10 @@ class Matrix:
     def __delattr__(self, name):
         raise AttributeError("Matrix is immutable")
 
+    def __reduce__(self):
+        """Pickled through the constructor (an immutable object has no state to set)."""
+        return (Matrix, (self.shape, self._rows))
+
     # ------------------------------------------------------------ builders
     @classmethod
     def from_rows(cls, rows, columns: int | None = None) -> "Matrix":
@@ -732,6 +736,10 @@ class Poly:
 
     def __setattr__(self, name, value):
         raise AttributeError("Poly is immutable")
+
+    def __reduce__(self):
+        """Pickled through the constructor (an immutable object has no state to set)."""
+        return (Poly, (self.coeffs,))
 
     def __delattr__(self, name):
         raise AttributeError("Poly is immutable")
