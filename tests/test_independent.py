@@ -351,3 +351,32 @@ def test_a_large_green_function_is_re_evaluated_independently():
     outcome = evaluate_claim_independently("sum(green(K)) == euler(K)",
                                            {"K": K.facet_labels()})
     assert outcome.get("holds") is True, outcome
+
+
+def test_main_backend_values_travel_between_processes():
+    # the same for the main backend's exact matrices and polynomials (common practice)
+    import pickle
+
+    from verifier.exact import Matrix, Poly
+    p = Poly([1, 0, -1])
+    assert pickle.loads(pickle.dumps(p)) == p
+    M = Matrix.from_rows([[1, 2], [3, 4]])
+    assert pickle.loads(pickle.dumps(M)) == M
+
+
+def test_large_exact_linear_algebra_comes_back_from_the_child_process():
+    # det L and L @ L for the torus refined twice (order 1,512) are computed in the
+    # evaluator's child and come back exactly: det L = prod omega = (-1)^(f_1) for a
+    # 2-complex (Knill, arXiv:1612.08229), and trace(L @ L) = number of intersecting
+    # ordered pairs = sum of the entries of L (L is a 0/1 symmetric matrix)
+    from verifier.claims.evaluate import Context, Limits, evaluate
+    from verifier.claims.expression import parse
+    from verifier.families import catalog
+    from verifier.operations import refine
+
+    K = refine(catalog.complex("torus-7"), 2)
+    ctx = Context(Limits(seconds=120))
+    det = evaluate(parse("det(connection(K))", {"K": "complex"}), {"K": K}, ctx)
+    assert det == (-1) ** K.f_vector[1]
+    assert evaluate(parse("trace(connection(K) @ connection(K)) == sum(connection(K))",
+                          {"K": "complex"}), {"K": K}, Context(Limits(seconds=120)))

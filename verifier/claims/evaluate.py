@@ -518,8 +518,10 @@ def _dispatch(node: Node, env: dict, ctx: Context):
         implementation = ctx.table[node.function.name]
         _guard_size(node, args, ctx)
         try:
-            heavy = not node.function.combinatorial and \
-                max(map(_order, args), default=0) >= STOPPABLE_ORDER
+            # exact linear algebra of a large matrix runs in a child the deadline can stop;
+            # certified and float values (enclosures that can recompute themselves) stay here
+            heavy = not node.function.combinatorial and node.function.evidence == "exact" \
+                and max(map(_order, args), default=0) >= STOPPABLE_ORDER
             if node.function.name == "is_reciprocal":
                 if not heavy:
                     return implementation(*args, ctx=ctx)

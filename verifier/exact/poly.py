@@ -46,6 +46,10 @@ class Poly:
     def __delattr__(self, name):
         raise AttributeError("Poly is immutable")
 
+    def __reduce__(self):
+        """Pickled through the constructor (an immutable object has no state to set)."""
+        return (Poly, (self.coeffs,))
+
     @property
     def degree(self) -> int:
         """Degree; -1 for the zero polynomial."""
