@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-from .. import energy, exact, invariants as inv, operations as ops, sizes
+from .. import energy, exact, invariants as inv, operations as ops
 from ..complex import Complex
 from .enclosure import (Count, Enclosure, enclosure_list, free_energy_value,
                         imaginary_part, real_part, probability_vector,
@@ -254,31 +254,10 @@ def _interior(K):
     return _positions_to_set(K, ops.interior(K))
 
 
-MAX_BUILT_SIMPLICES = 2_000_000   # largest complex an operation of the language may build
-
-
-def _refused_if_huge(what: str, simplices: int) -> None:
-    """Refuse, before building it, a complex whose predicted size exceeds the cap."""
-    if simplices > MAX_BUILT_SIMPLICES:
-        raise EvaluationError(f"{what}: the result would have {simplices:,} simplices, more "
-                              f"than the limit of {MAX_BUILT_SIMPLICES:,}")
-
-
 def _refine(K, times=1):
     if not isinstance(times, int) or not 0 <= times <= 4:
         raise EvaluationError(f"refine takes 0 to 4 refinements, got {times}")
-    _refused_if_huge("refine", sum(sizes.refined_f_vector(K.f_vector, times)))
     return ops.refine(K, times)
-
-
-def _join(A, B):
-    _refused_if_huge("join", sizes.join_size(len(A.simplices), len(B.simplices)))
-    return ops.join(A, B)
-
-
-def _product(A, B):
-    _refused_if_huge("product", sizes.product_size(A.f_vector, B.f_vector))
-    return ops.product(A, B)
 
 
 def _skeleton(K, k):
@@ -377,11 +356,11 @@ IMPLEMENTATIONS = {
     "homology": _homology, "torsion": _torsion,
     "is_manifold": inv.is_manifold, "is_manifold_with_boundary": inv.is_manifold_with_boundary,
     "is_closed_manifold": inv.is_closed_manifold,
-    "is_sphere": lambda K: inv.is_sphere(K), "is_ball": lambda K: inv.is_ball(K),
+    "is_sphere": inv.is_sphere, "is_ball": inv.is_ball,
     "h_vector": inv.h_vector, "curvature": _curvature, "index": _index,
     "star": _star, "closed_star": _closed_star, "link": _link, "unit_sphere": _unit_sphere,
-    "boundary": ops.boundary, "interior": _interior, "refine": _refine, "join": _join,
-    "cone": ops.cone, "suspension": ops.suspension, "product": _product,
+    "boundary": ops.boundary, "interior": _interior, "refine": _refine, "join": ops.join,
+    "cone": ops.cone, "suspension": ops.suspension, "product": ops.product,
     "skeleton": _skeleton, "union": _union,
     "eigenvalue_enclosures": _eigenvalue_enclosures, "zeros_in_box": _zeros_in_box,
     "zeros_on_axis": _zeros_on_axis, "re": real_part, "im": imaginary_part,

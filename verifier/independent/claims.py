@@ -1252,7 +1252,7 @@ IMPLEMENTATIONS = {
     "homology": homology, "torsion": torsion,
     "is_manifold": is_manifold, "is_manifold_with_boundary": is_manifold_with_boundary,
     "is_closed_manifold": is_closed_manifold, "curvature": curvature,
-    "is_sphere": lambda K: is_sphere(K), "is_ball": lambda K: is_ball(K),
+    "is_sphere": is_sphere, "is_ball": is_ball,
     "h_vector": h_vector,
     "index": poincare_hopf_index, "star": star, "closed_star": closed_star, "link": link,
     "unit_sphere": unit_sphere, "boundary": boundary, "interior": interior,
