@@ -392,6 +392,24 @@ class Family:
         for case_id in self.case_ids():
             yield case_id, self.get(case_id)
 
+    # ---- sharded planning (exhaustive families too large to list in one process)
+    def shards(self) -> list[str] | None:
+        """The names of this family's shards, in a fixed order, or None when the family
+        is planned case by case (the default).
+
+        A sharded family splits its cases into deterministic, disjoint shards whose
+        union is the family; each shard is generated on its own (in any process, from
+        the family's spec and the shard name alone) by :meth:`shard_cases`.  The
+        runner then never lists all case ids in one place: every worker generates and
+        evaluates its own shard.  Shard names are short, stable strings."""
+        return None
+
+    def shard_cases(self, shard: str) -> Iterator[tuple[str, Complex]]:
+        """The cases of one shard, ``(case_id, Complex)``, in a fixed order; each id is
+        one that :meth:`get` rebuilds on its own.  Raises FamilyError for a name that is
+        not one of :meth:`shards`."""
+        raise self._foreign(shard, "this family is not planned in shards")
+
     # ---- helpers for derived families and guards
     def f_bound(self) -> tuple[int, ...] | None:
         """An f-vector that bounds every case's f-vector entrywise, or None if unknown."""
