@@ -87,14 +87,16 @@ def complexes_of(claim: Claim, case_id: str) -> dict:
     return env
 
 
-def evaluate_case(claim: Claim, case_id: str, limits: Limits) -> dict:
-    """Evaluate one case: build its complexes, check ``where``, evaluate the statement."""
+def evaluate_case(claim: Claim, case_id: str, limits: Limits, env: dict | None = None) -> dict:
+    """Evaluate one case: build its complexes (unless ``env`` brings them, as a sharded
+    family's generator does), check ``where``, evaluate the statement."""
     start = time.perf_counter()
     record = {"claim": claim.name, "case_id": case_id, "family": family_label(claim, case_id)}
     deadline = time.monotonic() + limits.seconds if limits.seconds is not None else None
     try:
         with time_limit(deadline, limits.seconds):
-            env = complexes_of(claim, case_id)
+            if env is None:
+                env = complexes_of(claim, case_id)
             record["complex_hash"] = ",".join(env[v].content_hash for v in claim.variables)
             record["sizes"] = {v: [env[v].n_vertices, len(env[v].simplices)]
                                for v in claim.variables}      # for `verifier cases`
@@ -191,10 +193,10 @@ def run_batch(sources: tuple[tuple[str, str], ...], claim_name: str, case_ids: l
     return [_isolated(claim, case_id, bounds) for case_id in case_ids]
 
 
-def _isolated(claim: Claim, case_id: str, limits: Limits) -> dict:
+def _isolated(claim: Claim, case_id: str, limits: Limits, env: dict | None = None) -> dict:
     """One case of a batch; whatever happens to it stays with it (never the batch)."""
     try:
-        return evaluate_case(claim, case_id, limits)
+        return evaluate_case(claim, case_id, limits, env)
     except MemoryError:
         outcome, message = "limit", memory_reason(limits)
     except RecursionError:
