@@ -39,6 +39,7 @@ import numpy as np
 __all__ = ["Complex", "ComplexError", "CANONICAL_MAX_VERTICES"]
 
 CANONICAL_MAX_VERTICES = 10
+MASK_MAX_VERTICES = 62  # complexes on at most this many vertices have vertex bitmasks
 SMALL_INPUT = 2_000     # inputs up to this many labels (or simplices) take the plain-Python
                         # paths; larger ones the vectorised paths (same results)
 
@@ -168,6 +169,18 @@ class Complex:
             array.flags.writeable = False
             K._cache[("simplex_array", k)] = array
         K._cache["f_vector"] = tuple(len(a) for a in levels)
+        return K
+
+    @classmethod
+    def _with_vertex_masks(cls, labels: tuple, simplices: tuple, masks: list[int]) -> "Complex":
+        """Low-level constructor like ``Complex(labels, simplices)`` that also keeps the
+        simplices' vertex bitmasks (``masks[i]`` = sum of 2^v over ``simplices[i]``, at
+        most ``MASK_MAX_VERTICES`` vertices) as :meth:`vertex_masks`, for a builder
+        that has them anyway (the clique enumeration of flag complexes)."""
+        K = cls(labels, simplices)
+        array = np.array(masks, dtype=np.int64)
+        array.flags.writeable = False
+        K._cache["vertex_masks"] = array
         return K
 
     @classmethod
@@ -337,6 +350,30 @@ class Complex:
                 return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64)
             return np.concatenate(rows), np.concatenate(cols)
         return self._cached("vertex_incidence", compute)
+
+    def vertex_masks(self) -> np.ndarray:
+        """The simplices as vertex bitmasks: entry i is the sum of 2^v over the vertices
+        v of ``simplices[i]`` (int64, read-only), for complexes on at most
+        ``MASK_MAX_VERTICES`` vertices (ValueError beyond).
+
+        x is a face of z iff ``m[x] & ~m[z] == 0``; x and z meet iff ``m[x] & m[z] != 0``.
+
+        >>> Complex.from_facets([[0, 1], [2]]).vertex_masks().tolist()   # 0, 1, 2, 01
+        [1, 2, 4, 3]
+        """
+        if self.n_vertices > MASK_MAX_VERTICES:
+            raise ValueError(f"vertex bitmasks need at most {MASK_MAX_VERTICES} vertices, "
+                             f"this complex has {self.n_vertices}")
+
+        def compute():
+            powers = np.left_shift(np.int64(1), np.arange(self.n_vertices, dtype=np.int64))
+            parts = [np.bitwise_or.reduce(powers[self.simplex_array(k)], axis=1)
+                     for k in range(self.dim + 1)]
+            array = np.concatenate(parts) if parts else np.zeros(0, dtype=np.int64)
+            array = array.astype(np.int64)
+            array.flags.writeable = False
+            return array
+        return self._cached("vertex_masks", compute)
 
     def containments(self) -> tuple[np.ndarray, np.ndarray]:
         """All pairs (x, z) of simplex positions with x a face of z (x = z included).

@@ -34,7 +34,7 @@ from ..complex import Complex
 
 __all__ = [
     "FamilyError", "Param", "FamilyType", "Family", "SeededFamily", "build_family",
-    "describe_types", "case_random", "graph_complex", "REQUIRED", "MAX_COUNT",
+    "describe_types", "case_random", "graph_complex", "flag_cliques", "REQUIRED", "MAX_COUNT",
     "MAX_SIMPLICES", "MAX_RANDOM_VERTICES", "MAX_NESTING",
 ]
 
@@ -489,6 +489,9 @@ class SeededFamily(Family):
 
 
 # ---------------------------------------------------------------- shared builders
+MASK_CLIQUES_MAX_VERTICES = 62   # graphs up to this order: cliques by vertex bitmasks
+
+
 def graph_complex(n: int, edges, flag: bool, where: str) -> Complex:
     """The graph on vertices ``0..n-1`` with the given edges, as a complex.
 
@@ -504,8 +507,12 @@ def graph_complex(n: int, edges, flag: bool, where: str) -> Complex:
     >>> graph_complex(3, [(0, 1), (1, 2), (0, 2)], flag=True, where="example").f_vector
     (3, 3, 1)
 
-    Notes: cliques by networkx ``enumerate_all_cliques`` (counted as they come, so a
-    huge clique complex is refused before it is built).
+    Notes: for graphs on at most ``MASK_CLIQUES_MAX_VERTICES`` vertices whose edges all
+    join two distinct vertices of ``range(n)``, the cliques are listed by
+    :func:`flag_cliques` (vertex bitmasks, no graph object); otherwise by networkx
+    ``enumerate_all_cliques`` (:func:`_flag_cliques_networkx`, also the reference the
+    tests compare with).  Either way the cliques are counted as they come, so a huge
+    clique complex is refused before it is built.
     Reference: flag complexes -- M. Kahle, "Topology of random clique complexes",
     Discrete Math. 309 (2009) 1658-1671.
     """
@@ -513,6 +520,70 @@ def graph_complex(n: int, edges, flag: bool, where: str) -> Complex:
     if not flag:
         simplices = [(v,) for v in range(n)] + pairs
         return Complex(tuple(range(n)), tuple(simplices))
+    if n <= MASK_CLIQUES_MAX_VERTICES and all(0 <= u < v < n for u, v in pairs):
+        above = [0] * n
+        for u, v in pairs:
+            above[u] |= 1 << v
+        cliques, masks = flag_cliques(above, where)
+        return Complex._with_vertex_masks(tuple(range(n)), tuple(cliques), masks)
+    return Complex(tuple(range(n)), tuple(_flag_cliques_networkx(n, pairs, where)))
+
+
+def flag_cliques(above: list[int], where: str = "") -> tuple[list[tuple[int, ...]], list[int]]:
+    """The cliques of a graph given by bitmasks, ordered by (size, lexicographic).
+
+    Definition: ``above[u]`` is the set of neighbours v > u of vertex u, as the bitmask
+    sum of 2^v; a clique is a non-empty vertex set any two of whose vertices are
+    adjacent.  Returns the cliques as sorted tuples and, in the same order, their
+    vertex bitmasks.
+
+    >>> flag_cliques([0b110, 0b100, 0])[0]     # the triangle on 0, 1, 2
+    [(0,), (1,), (2,), (0, 1), (0, 2), (1, 2), (0, 1, 2)]
+
+    Notes: level by level: a (k+1)-clique is a k-clique C extended by a vertex w of
+    the common upper neighbourhood of C (the bitwise AND of ``above`` over C, whose
+    vertices all exceed max C).  Extending the k-cliques in lexicographic order by w
+    ascending lists the (k+1)-cliques in lexicographic order, so no sorting is needed;
+    the work is proportional to the number of cliques.  Raises FamilyError naming
+    ``where`` once there are more than MAX_SIMPLICES cliques.
+    Reference: the ordering is that of the Bron-Kerbosch style enumeration of all
+    cliques by increasing size, C. Bron and J. Kerbosch, Comm. ACM 16 (1973) 575-577.
+    """
+    n = len(above)
+    cliques: list[tuple[int, ...]] = [(v,) for v in range(n)]
+    masks = [1 << v for v in range(n)]
+    level = [((v,), 1 << v, above[v]) for v in range(n) if above[v]]
+    while level:
+        following = []
+        for clique, mask, common in level:
+            while common:
+                low = common & -common
+                w = low.bit_length() - 1
+                common ^= low
+                grown = clique + (w,)
+                cliques.append(grown)
+                masks.append(mask | low)
+                rest = common & above[w]
+                if rest:
+                    following.append((grown, mask | low, rest))
+            if len(cliques) > MAX_SIMPLICES:     # at most n added since the last look
+                raise _too_many_cliques(where)
+        level = following
+    if len(cliques) > MAX_SIMPLICES:
+        raise _too_many_cliques(where)
+    return cliques, masks
+
+
+def _too_many_cliques(where: str) -> FamilyError:
+    return FamilyError(f"{where}: the flag complex has more than {MAX_SIMPLICES} "
+                       "simplices (the limit for one case); ask for fewer vertices or "
+                       "sparser graphs")
+
+
+def _flag_cliques_networkx(n: int, pairs: list[tuple[int, int]], where: str) -> list[tuple]:
+    """The cliques of the graph on ``range(n)`` with the given edges, by networkx
+    ``enumerate_all_cliques``, sorted by (size, lexicographic): the general path of
+    :func:`graph_complex` and the reference its bitmask path is tested against."""
     import networkx as nx
 
     graph = nx.Graph()
@@ -522,8 +593,6 @@ def graph_complex(n: int, edges, flag: bool, where: str) -> Complex:
     for clique in nx.enumerate_all_cliques(graph):
         cliques.append(tuple(sorted(clique)))
         if len(cliques) > MAX_SIMPLICES:
-            raise FamilyError(f"{where}: the flag complex has more than {MAX_SIMPLICES} "
-                              "simplices (the limit for one case); ask for fewer vertices or "
-                              "sparser graphs")
+            raise _too_many_cliques(where)
     cliques.sort(key=lambda s: (len(s), s))
-    return Complex(tuple(range(n)), tuple(cliques))
+    return cliques
