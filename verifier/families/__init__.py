@@ -39,15 +39,15 @@ A :class:`Family` has
 
 Case ids are unique within a family and stable across runs and machines; to name a
 case globally, pair it with the family's ``spec()``.  Examples:
-``all-complexes/01-02-12``, ``graphs/G17``, ``random-flag/s11/17`` (seed 11, case 17),
-``catalog/torus-7``, ``file/octahedron.txt``, ``refine(2)/catalog/torus-7``,
-``join/catalog/sphere-1|graphs/G3``.
+``all-complexes/01-02-12``, ``graphs/G17``, ``graphs/9:c04082113`` (the 9-cycle),
+``random-flag/s11/17`` (seed 11, case 17), ``catalog/torus-7``, ``file/octahedron.txt``,
+``refine(2)/catalog/torus-7``, ``join/catalog/sphere-1|graphs/G3``.
 
 The families
 ------------
 ================  =============================================================
 all-complexes     every complex on <= 6 vertices up to isomorphism (:mod:`.enumerated`)
-graphs            the graph atlas (<= 7 vertices), 1-dimensional or flag
+graphs            every graph on <= 11 vertices up to isomorphism (:mod:`.graphs`)
 random-flag       flag complexes of G(n, p)                     (:mod:`.random_models`)
 random-pure       random pure d-complexes
 linial-meshulam   random 2-complexes Y(n, p)
@@ -70,7 +70,8 @@ from __future__ import annotations
 
 from .cycles import CYCLES
 from .derived import CONE, JOIN, PRODUCT, REFINE, SKELETON, SUSPENSION
-from .enumerated import ALL_COMPLEXES, GRAPHS
+from .enumerated import ALL_COMPLEXES
+from .graphs import GRAPHS
 from .family import (MAX_COUNT, MAX_RANDOM_VERTICES, MAX_SIMPLICES, Family, FamilyError,
                      FamilyType, Param, build_family, describe_types)
 from .named import CATALOG, FILE

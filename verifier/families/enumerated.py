@@ -1,4 +1,4 @@
-"""Exhaustive families: every complex on few vertices, every small graph.
+"""Exhaustive families: every complex on few vertices (every small graph: :mod:`.graphs`).
 
 ``all-complexes``
     Every simplicial complex on at most 6 vertices, one per isomorphism class.  A
@@ -19,15 +19,13 @@
     the one made of the empty set).
 
 ``graphs``
-    The graphs of the graph atlas of R. C. Read and R. J. Wilson, "An Atlas of
-    Graphs" (Oxford, 1998), as shipped by networkx: all 1,253 graphs on 0..7
-    vertices up to isomorphism; the graph without vertices is left out.  Each is a
-    1-dimensional complex or its flag (clique) complex.
+    Moved to :mod:`.graphs` (the atlas up to 7 vertices, canonical augmentation from 8
+    on); ``GRAPHS`` and ``ATLAS_COUNTS`` are re-exported here for older imports.
 
 Case ids: ``all-complexes/<facets>`` spells the facets of the canonical
 representative, for example ``all-complexes/01-02-12`` (the boundary of a triangle)
-or ``all-complexes/0-1`` (two points); ``graphs/G<i>`` is the graph's number in the
-atlas.  Both are stable across runs, machines and parameters.
+or ``all-complexes/0-1`` (two points); they are stable across runs, machines and
+parameters.
 """
 
 from __future__ import annotations
@@ -39,9 +37,10 @@ from math import comb
 import numpy as np
 
 from ..complex import Complex
-from .family import Family, FamilyError, FamilyType, Param, graph_complex
+from .family import Family, FamilyError, FamilyType, Param
+from .graphs import ATLAS_COUNTS, GRAPHS  # noqa: F401  (re-exported for older imports)
 
-__all__ = ["ALL_COMPLEXES", "GRAPHS", "classes_on", "canonical_facets",
+__all__ = ["ALL_COMPLEXES", "GRAPHS", "ATLAS_COUNTS", "classes_on", "canonical_facets",
            "MAX_EXHAUSTIVE_VERTICES"]
 
 # 7 vertices would give A003182(7) - A003182(6) = 490013148 - 16353 classes.
@@ -296,72 +295,4 @@ ALL_COMPLEXES = FamilyType(
     ),
     build=_build_all_complexes,
     reference="class counts: OEIS A261005 (exactly n vertices), A003182 (at most n)",
-)
-
-
-# ------------------------------------------------------------------- graphs
-@lru_cache(maxsize=1)
-def _atlas():
-    import networkx as nx
-
-    return tuple(nx.graph_atlas_g())
-
-
-# graphs per number of vertices, n = 0..7 (OEIS A000088); the atlas lists graphs by
-# number of vertices, so the graphs on n vertices are a range of atlas numbers and
-# planning needs no atlas (tests/test_families.py checks these ranges against it)
-ATLAS_COUNTS = (1, 1, 2, 4, 11, 34, 156, 1044)
-
-
-class AtlasGraphs(Family):
-    """The atlas graphs with min_vertices..max_vertices vertices."""
-
-    def _numbers(self) -> range:
-        lo, hi = self.params["min_vertices"], self.params["max_vertices"]
-        return range(sum(ATLAS_COUNTS[:lo]), sum(ATLAS_COUNTS[:hi + 1]))
-
-    def size(self) -> int:
-        return len(self._numbers())
-
-    def case_ids(self):
-        return (f"graphs/G{i}" for i in self._numbers())
-
-    def get(self, case_id) -> Complex:
-        tail = case_id[len("graphs/G"):] if isinstance(case_id, str) else ""
-        if (not isinstance(case_id, str) or not case_id.startswith("graphs/G")
-                or not tail.isdigit() or int(tail) >= len(_atlas())):
-            raise self._foreign(case_id, "its ids are 'graphs/G<number in the atlas>'")
-        graph = _atlas()[int(tail)]
-        n = graph.number_of_nodes()
-        if not self.params["min_vertices"] <= n <= self.params["max_vertices"]:
-            raise self._foreign(case_id, f"graph G{tail} has {n} vertices")
-        return graph_complex(n, graph.edges(), self.params["as"] == "flag", case_id)
-
-    def f_bound(self):
-        n = self.params["max_vertices"]
-        top = n if self.params["as"] == "flag" else min(n, 2)
-        return tuple(comb(n, i + 1) for i in range(top))
-
-
-def _build_graphs(params, context):
-    if params["min_vertices"] > params["max_vertices"]:
-        raise context.error("min_vertices", f"must be at most max_vertices = "
-                            f"{params['max_vertices']}; got {params['min_vertices']}")
-    return AtlasGraphs("graphs", params)
-
-
-GRAPHS = FamilyType(
-    name="graphs",
-    description="every graph on at most 7 vertices (the graph atlas), as a 1-dimensional "
-            "complex or as its flag complex",
-    params=(
-        Param.integer("max_vertices", 1, 7, "largest number of vertices", default=7),
-        Param.integer("min_vertices", 1, 7, "smallest number of vertices", default=1),
-        Param.choice("as", ("1-dimensional", "flag"),
-                     "the graph itself, or its flag (clique) complex",
-                     default="1-dimensional"),
-    ),
-    build=_build_graphs,
-    reference="R. C. Read and R. J. Wilson, An Atlas of Graphs, Oxford 1998; counts per "
-              "number of vertices: OEIS A000088",
 )
