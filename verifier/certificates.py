@@ -114,7 +114,9 @@ def certificate_of(result, run) -> dict:
         body["kind"] = "pass"
         if result.certified:
             body["certified"] = {"note": _CERTIFIED_NOTE, "cases": result.certified}
-    if (cap := _run_cap(claim, result.cases)) is not None:
+    if getattr(result, "shards", None) is not None:
+        body["shards"] = result.shards
+    elif (cap := _run_cap(claim, result.cases)) is not None:
         body["max_cases"] = cap
     return seal(body)
 
@@ -257,7 +259,7 @@ def data_files(data: dict) -> list[str]:
 # ------------------------------------------------------------ what a certificate holds
 TOP_KEYS = ("schema", "kind", "claim", "cases", "outcomes", "digest", "evidence", "engine",
             "versions", "run", "created", "seconds", "recheck", "sha256")
-OPTIONAL_TOP_KEYS = ("certified", "max_cases")
+OPTIONAL_TOP_KEYS = ("certified", "max_cases", "shards")
 COUNTEREXAMPLE_KEYS = ("complex", "complexes", "values", "witness", "original", "shrinking")
 CLAIM_BLOCK_KEYS = ("name", "title", "statement", "where", "expect", "evidence", "source",
                     "max_cases", "over", "sha256", "file")
@@ -824,6 +826,11 @@ class _Check:
                 raise _Rejected("mismatch: the digest is not the one of the certified "
                                 "counterexample")
             self.ids, self.envs, self.chosen, self.tasks = [], {}, [], []
+            self.total = 0
+            return
+        from .run.shards import is_sharded
+        if is_sharded(claim):
+            self._plan_shards(data, claim, announced)
             return
         ids = list(itertools.islice(plan(claim, self.cap), announced + 1))
         if len(ids) != announced:
@@ -834,12 +841,97 @@ class _Check:
                 for cid in ids]
         if digest_of(rows) != data["digest"]:
             raise _Rejected("mismatch: the digest over the cases differs from the certified one")
-        self.ids, self.envs = ids, envs
+        self.ids, self.envs, self.total = ids, envs, len(ids)
         sample = self.sample
         self.chosen = ids if not sample or sample >= len(ids) else sorted(
             random.Random(self.seed).sample(ids, sample))
         self.tasks = [self._task({v: envs[cid][v] for v in claim.variables})
                       for cid in self.chosen]
+
+    def _plan_shards(self, data: dict, claim: _Claim, announced: int):
+        """A sharded claim: the recorded shards must be the claim's shards in order, their
+        counts and digest sums must add up to the certificate's cases and digest; then only
+        the shards that hold the sampled cases (every shard without --sample) are generated
+        again, each checked against its recorded count and sum, and the sampled cases are
+        queued for re-evaluation."""
+        from .run.shards import (ShardError, add_sums, line_value, shard_cases, shard_keys,
+                                 sharded_digest)
+        if self.cap is not None:
+            raise _Rejected("malformed: max_cases on a claim over a family planned in shards "
+                            "(the runner never caps such a claim)")
+        try:
+            keys = shard_keys(claim)
+        except ShardError as error:
+            raise _Rejected(f"malformed: {error}") from None
+        recorded = data.get("shards")
+        if not isinstance(recorded, list):
+            raise _Rejected("malformed: a claim over a family planned in shards records its "
+                            "shards ('shards': a list of {shard, cases, sum})")
+        for i, entry in enumerate(recorded):
+            _keys(entry, f"shards[{i}]", ("shard", "cases", "sum"))
+            if not _whole(entry["cases"]) or entry["cases"] < 0 or not isinstance(
+                    entry["sum"], str) or not _HEX.fullmatch(entry["sum"]):
+                raise _Rejected(f"malformed: shards[{i}] must have a whole number of cases and "
+                                f"a sum of 64 hexadecimal digits, got {_shown(entry)}")
+        if [e["shard"] for e in recorded] != keys:
+            raise _Rejected(f"mismatch: the certificate's shards are not the {len(keys):,} "
+                            "shards of the claim's families, in order")
+        if sum(e["cases"] for e in recorded) != announced:
+            raise _Rejected(f"mismatch: the shards hold {sum(e['cases'] for e in recorded):,} "
+                            f"cases, the certificate says {announced:,}")
+        total_sum = add_sums("0" * 64, *(e["sum"] for e in recorded))
+        if sharded_digest(announced, total_sum) != data["digest"]:
+            raise _Rejected("mismatch: the digest is not the one of the recorded shards")
+        sample = self.sample
+        if sample and sample < announced:
+            positions = sorted(random.Random(self.seed).sample(range(announced), sample))
+        else:
+            positions = None
+        wanted: dict[int, set] = {}
+        if positions is not None:
+            starts, at = [], 0
+            for entry in recorded:
+                starts.append(at)
+                at += entry["cases"]
+            import bisect
+            for position in positions:
+                shard = bisect.bisect_right(starts, position) - 1
+                while recorded[shard]["cases"] == 0:      # empty shards hold no position
+                    shard -= 1
+                wanted.setdefault(shard, set()).add(position - starts[shard])
+        chosen, envs = [], {}
+        for number, (key, entry) in enumerate(zip(keys, recorded)):
+            if positions is not None and number not in wanted:
+                continue
+            count, total = 0, 0
+            for index, (cid, env) in enumerate(shard_cases(claim, key)):
+                hashes = ",".join(env[v].content_hash for v in claim.variables)
+                total += line_value(cid, hashes)
+                count += 1
+                if positions is None or index in wanted[number]:
+                    chosen.append(cid)
+                    envs[cid] = env
+            if count != entry["cases"] or f"{total % (1 << 256):064x}" != entry["sum"]:
+                raise _Rejected(f"mismatch: shard {key} generated again has {count:,} cases and "
+                                f"another digest sum than the certificate records "
+                                f"({entry['cases']:,} cases)")
+        self.ids, self.envs, self.chosen, self.total = chosen, envs, chosen, announced
+        self.sharded = True
+        self.tasks = [self._task({v: envs[cid][v] for v in claim.variables})
+                      for cid in chosen]
+
+    def _case_env(self, case_id: str) -> dict | None:
+        """The complexes of a case of the claim: from the planned cases, or (a sharded
+        claim re-checked on a sample) rebuilt from the id alone; None if not a case."""
+        if case_id in self.envs:
+            return self.envs[case_id]
+        if not getattr(self, "sharded", False):
+            return None
+        from .run.cases import complexes_of
+        try:
+            return complexes_of(self.claim, case_id)
+        except (ValueError, KeyError, IndexError):
+            return None
 
     def _task(self, env: dict) -> dict:
         """A re-check task for an environment (variable -> Complex or facet list)."""
@@ -861,11 +953,9 @@ class _Check:
             env = {v: Complex.from_facets([[_tuple_labels(x) for x in f]
                                            for f in original["complexes"][v]["facets"]])
                    for v in claim.variables}
-        elif original["case_id"] not in self.envs:
+        elif (env := self._case_env(original["case_id"])) is None:
             raise _Rejected(f"mismatch: original.case_id {_shown(original['case_id'])} is not a "
                             "case of the claim's families")
-        else:
-            env = self.envs[original["case_id"]]
         for v in claim.variables if not self.search else ():
             if _plain(env[v].facet_labels()) != original["complexes"][v]["facets"]:
                 raise _Rejected(f"mismatch: original.complexes.{v} is not case "
@@ -940,7 +1030,7 @@ class _Check:
         """Outcome counts recounted from a re-evaluation of every case; what was done."""
         from .run.store import OUTCOMES, UNSETTLED
         recorded = self.data["outcomes"]
-        if len(self.chosen) != len(self.ids):
+        if len(self.chosen) != self.total:
             return "outcome counts not recounted (a sample)"
         recounted = {o: 0 for o in OUTCOMES}
         for answer in answers:
@@ -972,7 +1062,7 @@ class _Check:
         for i, entry in enumerate(entries):
             where = f"certified.cases[{i}]"
             _keys(entry, where, ("case_id", "outcome", "sides", "values"))
-            if entry["case_id"] not in self.envs or entry["case_id"] in recorded:
+            if self._case_env(entry["case_id"]) is None or entry["case_id"] in recorded:
                 raise _Rejected(f"mismatch: {where}.case_id {_shown(entry['case_id'])} is not a "
                                 "case of the certificate (or is listed twice)")
             recorded[entry["case_id"]] = entry
@@ -988,7 +1078,7 @@ class _Check:
             entry = recorded.get(cid)
             if entry is None:
                 if answer.get("certified") and len(recorded) < 200 and len(self.chosen) == \
-                        len(self.ids):
+                        self.total:
                     raise _Rejected(f"mismatch: the certified values of case {cid} were dropped")
                 continue
             if entry["outcome"] != answer.get("outcome"):
@@ -1001,7 +1091,7 @@ class _Check:
                                               f"certified values of case {cid}", certified)):
                 raise _Rejected(f"mismatch on case {cid}: {problem}")
         counted = self._recount(answers)
-        scope = "every case" if len(self.chosen) == len(self.ids) else \
+        scope = "every case" if len(self.chosen) == self.total else \
             f"a sample of {len(self.chosen)} cases"
         self.result.cases_checked = len(self.chosen)
         self.result.reason = (f"verified: digest recomputed, {scope} re-evaluated (independent "
@@ -1042,7 +1132,7 @@ class _Check:
         if (problem := _values_problem(original["values"], first.get("sides") or [],
                                        "original.values", certified)):
             raise _Rejected(f"mismatch: {problem}")
-        if count == len(self.ids):
+        if count == self.total:
             failing = sorted(cid for cid, a in zip(self.chosen, cases) if a.get("outcome") == "fails")
             if failing and failing[0] != original["case_id"]:
                 raise _Rejected(f"mismatch: the first failing case is {failing[0]}, not the "

@@ -211,10 +211,11 @@ class _Bar:
                                  TimeRemainingColumn(), console=console, transient=False)
         self.task = None
 
-    def start(self, claim, total, done):
+    def start(self, claim, total, done, unit="cases"):
         if self.task is None:
             self.progress.start()
-        self.task = self.progress.add_task(claim.name[:28], total=total, completed=done)
+        name = claim.name[:28] if unit == "cases" else f"{claim.name[:19]} ({unit})"
+        self.task = self.progress.add_task(name, total=total, completed=done)
 
     def advance(self, n):
         self.progress.advance(self.task, n)

@@ -29,12 +29,25 @@ __all__ = ["InlineEngine", "ProcessEngine", "DaskEngine", "Batch"]
 
 
 class Batch:
-    """Arguments of one call of the batch function, and what to record if it cannot run."""
+    """Arguments of one call of the batch function, and what to record if it cannot run.
 
-    __slots__ = ("args", "case_ids", "budget", "attempt")
+    ``splitter`` (optional) cuts a batch that failed into smaller batches, or returns
+    None when the batch is one case; without it a batch of several case ids is split into
+    one batch per case (a sharded claim's batch is one shard, split by ranges of its
+    cases: :mod:`verifier.run.shards`)."""
 
-    def __init__(self, args: tuple, case_ids: list[str], budget: float, attempt: int = 0):
+    __slots__ = ("args", "case_ids", "budget", "attempt", "splitter")
+
+    def __init__(self, args: tuple, case_ids: list[str], budget: float, attempt: int = 0,
+                 splitter=None):
         self.args, self.case_ids, self.budget, self.attempt = args, case_ids, budget, attempt
+        self.splitter = splitter
+
+    def pieces(self) -> list["Batch"] | None:
+        """Smaller batches covering this one, or None when it is a single case."""
+        if self.splitter is not None:
+            return self.splitter(self)
+        return _split(self) if len(self.case_ids) > 1 else None
 
 
 class InlineEngine:
@@ -151,11 +164,13 @@ class ProcessEngine:
                     w["process"].kill()
                     w["process"].join(5)
                     workers[i] = self._start(function)
-                    if len(batch.case_ids) > 1:       # retry its cases one by one
-                        for single in _split(batch):
+                    pieces = batch.pieces()
+                    if pieces:                         # retry it piece by piece
+                        for single in reversed(pieces):
                             pending.appendleft(single)
                     elif dead and batch.attempt == 0:  # a crash: one more try
-                        pending.appendleft(Batch(batch.args, batch.case_ids, batch.budget, 1))
+                        pending.appendleft(Batch(batch.args, batch.case_ids, batch.budget, 1,
+                                                 batch.splitter))
                     else:
                         outcome = "limit" if late else "error"
                         reason = ("seconds: the case ran past its time limit" if late
@@ -238,8 +253,9 @@ class DaskEngine:
                     records = future.result()
                 except Exception as error:        # noqa: BLE001 - recorded with the cases
                     if type(error).__name__ == "KilledWorker":
-                        if len(batch.case_ids) > 1:   # find the case that kills workers
-                            pending.extendleft(_split(batch))
+                        pieces = batch.pieces()
+                        if pieces:                    # find the case that kills workers
+                            pending.extendleft(reversed(pieces))
                             continue
                         records = _failed(batch, "limit", "memory: workers kept dying on this "
                                           "case (out of memory or crashed"
@@ -254,8 +270,9 @@ class DaskEngine:
                     continue
                 running.pop(future)
                 self._stop(future)
-                if len(batch.case_ids) > 1:
-                    for single in _split(batch):
+                pieces = batch.pieces()
+                if pieces:
+                    for single in reversed(pieces):
                         pending.appendleft(single)
                 else:
                     yield batch, _failed(batch, "limit",

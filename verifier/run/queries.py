@@ -13,7 +13,6 @@ import datetime
 import json
 from contextlib import contextmanager
 
-from .runner import digest_of
 from .store import OUTCOMES, UNSETTLED, Store, StoreError, verdict_of
 
 __all__ = ["QueryError", "reading", "resolve_run", "cases", "runs", "compare",
@@ -174,7 +173,7 @@ def compare(path, first: str, second: str) -> dict:
         for name in claims:
             outcome = {run: {r["case_id"]: r["outcome"] for r in store.case_records(run, name)}
                        for run in (a, b)}
-            digests = {run: digest_of(store.hashes(run, name)) if name in verdicts[run]
+            digests = {run: store.digest(run, name) if name in verdicts[run]
                        else None for run in (a, b)}
 
             def having(run, kinds):
@@ -184,7 +183,7 @@ def compare(path, first: str, second: str) -> dict:
             open_ = {run: having(run, UNSETTLED) for run in (a, b)}
             entry = {
                 "verdict": [verdicts[run].get(name, {}).get("verdict") for run in (a, b)],
-                "cases": [len(outcome[a]), len(outcome[b])],
+                "cases": [sum(store.counts(run, name).values()) for run in (a, b)],
                 "fails_appeared": sorted(fails[b] - fails[a]),
                 "fails_disappeared": sorted(fails[a] - fails[b]),
                 "unsettled_appeared": sorted(open_[b] - open_[a]),

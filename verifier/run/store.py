@@ -146,6 +146,19 @@ CREATE TABLE IF NOT EXISTS cases (
     certified    TEXT,
     PRIMARY KEY (run_id, claim, case_id)
 ) WITHOUT ROWID;
+CREATE TABLE IF NOT EXISTS shard_parts (
+    run_id     TEXT NOT NULL,
+    claim      TEXT NOT NULL,
+    shard      TEXT NOT NULL,
+    start      INTEGER NOT NULL,
+    stop       INTEGER NOT NULL,
+    complete   INTEGER NOT NULL,
+    cases      INTEGER NOT NULL,
+    counts     TEXT NOT NULL,
+    digest_sum TEXT NOT NULL,
+    seconds    REAL,
+    PRIMARY KEY (run_id, claim, shard, start)
+) WITHOUT ROWID;
 CREATE TABLE IF NOT EXISTS counterexamples (
     run_id     TEXT NOT NULL,
     claim      TEXT NOT NULL,
@@ -262,6 +275,10 @@ class Store:
 
     def add_cases(self, run_id: str, records: list[dict]):
         """Write evaluated cases in one transaction (a case already present is kept)."""
+        self._insert_cases(run_id, records)
+        self.db.commit()
+
+    def _insert_cases(self, run_id: str, records: list[dict]):
         self.db.executemany(
             "INSERT OR IGNORE INTO cases (run_id, claim, case_id, family, complex_hash, outcome, "
             "evidence, sides, witness, message, seconds, certified, sizes) "
@@ -272,19 +289,97 @@ class Store:
               r.get("message"), r.get("seconds", 0.0),
               json.dumps(r["certified"]) if r.get("certified") else None,
               json.dumps(r["sizes"]) if r.get("sizes") else None) for r in records])
-        self.db.commit()
 
     def counts(self, run_id: str, claim: str) -> dict[str, int]:
+        counts = {o: 0 for o in OUTCOMES}
+        if self.is_sharded(run_id, claim):
+            for (text,) in self.db.execute("SELECT counts FROM shard_parts WHERE run_id = ? "
+                                           "AND claim = ?", (run_id, claim)):
+                for outcome, n in json.loads(text).items():
+                    counts[outcome] = counts.get(outcome, 0) + n
+            return counts
         rows = self.db.execute("SELECT outcome, COUNT(*) FROM cases WHERE run_id = ? AND "
                                "claim = ? GROUP BY outcome", (run_id, claim))
-        counts = {o: 0 for o in OUTCOMES}
         counts.update(dict(rows.fetchall()))
         return counts
 
     def seconds(self, run_id: str, claim: str) -> float:
-        row = self.db.execute("SELECT SUM(seconds) FROM cases WHERE run_id = ? AND claim = ?",
-                              (run_id, claim)).fetchone()
+        table = "shard_parts" if self.is_sharded(run_id, claim) else "cases"
+        row = self.db.execute(f"SELECT SUM(seconds) FROM {table} WHERE run_id = ? AND "
+                              "claim = ?", (run_id, claim)).fetchone()
         return float(row[0] or 0.0)
+
+    # ---------------------------------------------------------------- shards
+    def _has_shards(self) -> bool:
+        return self.db.execute("SELECT 1 FROM sqlite_master WHERE type = 'table' AND "
+                               "name = 'shard_parts'").fetchone() is not None
+
+    def is_sharded(self, run_id: str, claim: str) -> bool:
+        """True when the claim's cases were planned in shards in this run (only its
+        notable cases are then stored one by one; counts and digest come from parts)."""
+        return self._has_shards() and self.db.execute(
+            "SELECT 1 FROM shard_parts WHERE run_id = ? AND claim = ? LIMIT 1",
+            (run_id, claim)).fetchone() is not None
+
+    def add_shard_part(self, run_id: str, claim: str, part: dict, records: list[dict]):
+        """Write one evaluated part of a shard and its notable cases in one transaction
+        (a part already present is kept: nothing is counted twice)."""
+        with self.db:
+            self.db.execute(
+                "INSERT OR IGNORE INTO shard_parts (run_id, claim, shard, start, stop, "
+                "complete, cases, counts, digest_sum, seconds) VALUES (?,?,?,?,?,?,?,?,?,?)",
+                (run_id, claim, part["shard"], part["start"], part["stop"],
+                 int(part["complete"]), part["cases"], json.dumps(part["counts"], sort_keys=True),
+                 part["sum"], part["seconds"]))
+            self._insert_cases(run_id, records)
+
+    def done_shards(self, run_id: str, claim: str) -> set[str]:
+        """The shards of a claim whose parts cover every case, from the first to the last;
+        the parts of the other shards are removed (they are evaluated again whole)."""
+        parts: dict[str, list] = {}
+        for shard, start, stop, complete in self.db.execute(
+                "SELECT shard, start, stop, complete FROM shard_parts WHERE run_id = ? AND "
+                "claim = ? ORDER BY shard, start", (run_id, claim)):
+            parts.setdefault(shard, []).append((start, stop, complete))
+        done, partial = set(), []
+        for shard, pieces in parts.items():
+            reach, finished = 0, False
+            for start, stop, complete in pieces:
+                if start != reach:
+                    break
+                reach, finished = stop, bool(complete)
+            if finished:
+                done.add(shard)
+            else:
+                partial.append(shard)
+        if partial:
+            with self.db:
+                self.db.executemany("DELETE FROM shard_parts WHERE run_id = ? AND claim = ? "
+                                    "AND shard = ?", [(run_id, claim, s) for s in partial])
+        return done
+
+    def digest(self, run_id: str, claim: str) -> str:
+        """The digest of a claim's cases in a run, as its certificate records it: over the
+        sorted case lines, or for a sharded claim from its parts (:mod:`.shards`)."""
+        from .runner import digest_of
+        from .shards import add_sums, sharded_digest
+        if self.is_sharded(run_id, claim):
+            sums = self.shard_sums(run_id, claim)
+            return sharded_digest(sum(e["cases"] for e in sums),
+                                  add_sums("0" * 64, *(e["sum"] for e in sums)))
+        return digest_of(self.hashes(run_id, claim))
+
+    def shard_sums(self, run_id: str, claim: str) -> list[dict]:
+        """Per shard (in key order): its number of cases and digest sum, over its parts."""
+        from .shards import add_sums
+        table: dict[str, dict] = {}
+        for shard, cases, digest_sum in self.db.execute(
+                "SELECT shard, cases, digest_sum FROM shard_parts WHERE run_id = ? AND "
+                "claim = ? ORDER BY shard, start", (run_id, claim)):
+            entry = table.setdefault(shard, {"shard": shard, "cases": 0, "sum": "0" * 64})
+            entry["cases"] += cases
+            entry["sum"] = add_sums(entry["sum"], digest_sum)
+        return list(table.values())
 
     def hashes(self, run_id: str, claim: str) -> list[tuple[str, str]]:
         """(case_id, complex_hash) of every case, sorted by case id."""
@@ -326,7 +421,19 @@ class Store:
             entry["counts"][outcome] = count
             entry["cases"] += count
             entry["seconds"] += seconds or 0.0
-        return table
+        if self._has_shards():     # sharded claims: counts and times from their parts
+            parts = self.db.execute("SELECT claim, counts, cases, seconds FROM shard_parts "
+                                    "WHERE run_id = ?", (run_id,))
+            sharded: dict[str, dict] = {}
+            for claim, counts, cases, seconds in parts:
+                entry = sharded.setdefault(claim, {"counts": {o: 0 for o in OUTCOMES},
+                                                   "cases": 0, "seconds": 0.0})
+                for outcome, n in json.loads(counts).items():
+                    entry["counts"][outcome] = entry["counts"].get(outcome, 0) + n
+                entry["cases"] += cases
+                entry["seconds"] += seconds or 0.0
+            table.update(sharded)
+        return dict(sorted(table.items()))
 
     def runs(self) -> list[tuple]:
         """(run_id, started, finished, engine) of every run, newest first."""
@@ -369,8 +476,12 @@ class Store:
 
     def claims_of_run(self, run_id: str) -> list[str]:
         """The names of the claims with cases in a run, sorted."""
-        return [r[0] for r in self.db.execute(
-            "SELECT DISTINCT claim FROM cases WHERE run_id = ? ORDER BY claim", (run_id,))]
+        names = {r[0] for r in self.db.execute(
+            "SELECT DISTINCT claim FROM cases WHERE run_id = ?", (run_id,))}
+        if self._has_shards():
+            names |= {r[0] for r in self.db.execute(
+                "SELECT DISTINCT claim FROM shard_parts WHERE run_id = ?", (run_id,))}
+        return sorted(names)
 
     def save_counterexample(self, run_id: str, claim: str, case_id: str, record: dict):
         """Store a minimal counterexample with its readable form (vertices 1..n, the map to
