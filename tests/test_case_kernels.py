@@ -98,3 +98,77 @@ def test_too_many_cliques_is_refused_with_the_case_named():
     above = [sum(1 << w for w in range(v + 1, 21)) for v in range(21)]
     with pytest.raises(FamilyError, match="case Y"):
         flag_cliques(above, "case Y")
+
+
+# ------------------------------------------------------------------ Green function
+
+def _varied_complexes(count: int, seed: int):
+    """Flag complexes, pure complexes and every complex on <= 4 vertices."""
+    rng = random.Random(seed)
+    out = [K for _, K in make_family({"family": "all-complexes", "max_vertices": 4})]
+    for _ in range(count):
+        n = rng.randint(1, 10)
+        out.append(graph_complex(n, gnp_edges(rng, n, rng.random()), True, "test"))
+        facets = [rng.sample(range(n + 2), min(n + 2, rng.randint(1, 4)))
+                  for _ in range(rng.randint(1, 6))]
+        out.append(Complex.from_facets(facets))
+    return out
+
+
+def test_bitmask_green_equals_the_general_star_formula_and_exact_inversion():
+    # reference: the general Matrix path of this project (green_general) and exact
+    # inversion of L by python-flint (green_by_inversion), both independent of the masks
+    from verifier.invariants.connection import green, green_by_inversion, green_general
+    for i, K in enumerate(_varied_complexes(150, 11)):
+        g = green(K)
+        assert g == green_general(K)
+        if i % 5 == 0:
+            assert g == green_by_inversion(K)
+        assert g.provenance == "star formula, verified L*g = I exactly"
+
+
+def test_bitmask_green_against_sympy_inverse():
+    # reference: sympy's exact rational inverse of the connection matrix, built here from
+    # the definition L[x, y] = 1 iff x and y share a vertex (Knill, arXiv:1612.08229)
+    import sympy
+    from verifier.invariants.connection import green
+    rng = random.Random(5)
+    for _ in range(6):
+        K = graph_complex(5, gnp_edges(rng, 5, 0.6), True, "test")
+        L = sympy.Matrix(len(K), len(K), lambda x, y: int(bool(set(K.simplices[x]) &
+                                                             set(K.simplices[y]))))
+        assert green(K).rows() == L.inv().tolist()
+
+
+def test_energy_theorem_holds_through_the_bitmask_path():
+    # sum of g(x, y) = euler characteristic: Knill, "The energy of a simplicial complex",
+    # Linear Algebra Appl. 600 (2020), Theorem 1
+    from verifier.invariants.connection import green
+    from verifier.invariants import euler
+    for K in _varied_complexes(60, 3):
+        assert green(K).total() == euler(K)
+
+
+def test_the_check_rejects_a_wrong_candidate():
+    # a candidate with one entry changed is not the inverse: L g' = I + L e_xy != I
+    import numpy as np
+    from verifier.exact import mask_kernels
+    rng = random.Random(9)
+    for _ in range(30):
+        n = rng.randint(2, 9)
+        K = graph_complex(n, gnp_edges(rng, n, 0.5), True, "test")
+        g, ok = mask_kernels.checked_green(K.vertex_masks())
+        assert ok
+        x, y = rng.randrange(len(K)), rng.randrange(len(K))
+        wrong = g.copy()
+        wrong[x, y] += rng.choice([-1, 1])
+        assert not mask_kernels.is_connection_inverse(K.vertex_masks(), wrong)
+        assert not mask_kernels.is_connection_inverse(K.vertex_masks(), np.zeros_like(g))
+
+
+def test_large_complexes_keep_the_general_path():
+    # past MASK_GREEN_MAX simplices (K_11's flag complex: 2^11 - 1) the general path decides
+    from verifier.invariants.connection import MASK_GREEN_MAX, green
+    K = graph_complex(11, list(combinations(range(11), 2)), True, "test")
+    assert len(K) > MASK_GREEN_MAX
+    assert green(K).total() == 1    # the simplex is contractible: euler = 1
