@@ -38,6 +38,7 @@ from verifier.families import catalog  # noqa: E402
 from bench.homology import BENCHMARKS as HOMOLOGY_BENCHMARKS  # noqa: E402
 from bench.timing import best_of, fresh  # noqa: E402
 from bench.discover import BENCHMARKS as DISCOVER_BENCHMARKS  # noqa: E402
+from bench.exhaustive import BENCHMARKS as EXHAUSTIVE_BENCHMARKS  # noqa: E402
 
 RESULTS = ROOT / "bench" / "results.json"
 
@@ -583,6 +584,7 @@ BENCHMARKS = {
 }
 BENCHMARKS.update(HOMOLOGY_BENCHMARKS)
 BENCHMARKS.update(DISCOVER_BENCHMARKS)
+BENCHMARKS.update(EXHAUSTIVE_BENCHMARKS)
 
 
 def main(argv=None) -> int:
@@ -618,6 +620,13 @@ def main(argv=None) -> int:
                     f"{row['wu_s']:.1f} s, closed manifold {row['closed_manifold_s']:.1f} s, "
                     f"10 links {row['links_s']:.1f} s, hash {row['content_hash_s']:.1f} s, "
                     f"peak {row['peak_rss_gb']:.1f} GB")
+        if name.startswith("exhaustive-graphs"):
+            note = (f"{row['cases']:,} cases, {row['cases_per_s_per_core']:.0f} cases/s/core"
+                    + ("" if row.get("whole", True) else
+                       f" ({row['shards_run']} of {row['shards']} shards; whole run projected "
+                       f"{row['projected_whole_h']:.2f} h)"))
+        if name.startswith("generate-"):
+            note = f"{row['cases']:,} complexes generated"
         if name == "campaign-1e6":
             note = (f"{row['cases_per_s']:.0f} cases/s, store {row['store_bytes'] / 1e6:.0f} MB,"
                     f" summary {row['summary_s']:.1f} s")
