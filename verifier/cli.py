@@ -436,6 +436,11 @@ def cmd_cases(args, console: Console) -> int:
                       _sizes_text(r["sizes"], 0), _sizes_text(r["sizes"], 1),
                       escape(_values_text(r)))
     _print_table(console, table)
+    from .run.queries import sharded_claims
+    for name, total in sharded_claims(args.store, run_id, args.claim).items():
+        console.print(f"{escape(name)} ranges over a family planned in shards: of its "
+                      f"{total:,} cases only the notable ones (not holding, or with certified "
+                      "values) are kept one by one; `verifier summary` counts them all")
     return 0
 
 

@@ -111,6 +111,16 @@ def cases(path, run: str | None = None, claim: str | None = None, outcomes=None,
     return run_id, kept
 
 
+def sharded_claims(path, run: str | None = None, claim: str | None = None) -> dict[str, int]:
+    """The claims of a run planned in shards (they keep only their notable cases one by
+    one), each with its number of cases."""
+    with reading(path) as store:
+        run_id = resolve_run(store, run)
+        return {name: sum(store.counts(run_id, name).values())
+                for name in store.claims_of_run(run_id)
+                if (claim is None or name == claim) and store.is_sharded(run_id, name)}
+
+
 def _within(value: int | None, bounds: tuple | None) -> bool:
     if bounds is None:
         return True
