@@ -38,7 +38,7 @@ import numpy as np
 
 __all__ = ["Complex", "ComplexError", "CANONICAL_MAX_VERTICES"]
 
-CANONICAL_MAX_VERTICES = 10
+CANONICAL_MAX_VERTICES = 10   # (also the bound of verifier.canonical_kernels)
 MASK_MAX_VERTICES = 62  # complexes on at most this many vertices have vertex bitmasks
 SMALL_INPUT = 2_000     # inputs up to this many labels (or simplices) take the plain-Python
                         # paths; larger ones the vectorised paths (same results)
@@ -521,20 +521,32 @@ class Complex:
         Computed by individualisation-refinement (a partition of the vertices refined by
         incidence counts, branches over a non-singleton cell, pruned by interchangeable
         vertices); meant for small complexes (cost grows with the automorphism group).
+        Up to ``CANONICAL_MAX_VERTICES`` vertices the same search runs compiled
+        (:mod:`verifier.canonical_kernels`), with the same result.
         """
-        return self._cached("canonical_form", lambda: _canonical_form(self))
+        def compute():
+            if 0 < self.n_vertices <= CANONICAL_MAX_VERTICES:
+                from .canonical_kernels import canonical_rows
+
+                rows = canonical_rows(self.n_vertices, self.vertex_masks()).tolist()
+                return tuple(tuple(v for v in row if v >= 0) for row in rows)
+            return _canonical_form(self)
+        return self._cached("canonical_form", compute)
 
     @property
     def content_hash(self) -> str:
         """SHA-256 (hex) identifying the complex up to isomorphism; see module docstring."""
         def compute():
             if self.hash_is_canonical:
-                payload = {"canonical": [list(f) for f in self.canonical_form()],
-                           "n": self.n_vertices}
+                # the text json.dumps(payload, separators=(",", ":"), sort_keys=True)
+                # writes for payload = {"canonical": [list(f) for f in form], "n": n},
+                # spelled out (lists of ints print alike in Python and JSON)
+                form = str([list(f) for f in self.canonical_form()]).replace(" ", "")
+                text = f'{{"canonical":{form},"n":{self.n_vertices}}}'
             else:
                 payload = {"colour-refinement": _refinement_invariant(self),
                            "f": list(self.f_vector)}
-            text = json.dumps(payload, separators=(",", ":"), sort_keys=True)
+                text = json.dumps(payload, separators=(",", ":"), sort_keys=True)
             return hashlib.sha256(text.encode()).hexdigest()
         return self._cached("content_hash", compute)
 

@@ -35,7 +35,11 @@ def _labels(K: Complex, simplices) -> tuple:
 
 
 def _keyed(K: Complex, matrix) -> Indexed:
-    keys = _labels(K, K.simplices)
+    labels = K.labels
+    if all(type(v) is int and v == i for i, v in enumerate(labels)):
+        keys = K.simplices          # labels 0..n-1: every simplex is its own label tuple
+    else:
+        keys = _labels(K, K.simplices)
     return Indexed(matrix, keys, keys)
 
 
