@@ -516,17 +516,29 @@ def graph_complex(n: int, edges, flag: bool, where: str) -> Complex:
     Reference: flag complexes -- M. Kahle, "Topology of random clique complexes",
     Discrete Math. 309 (2009) 1658-1671.
     """
+    if flag and n <= MASK_CLIQUES_MAX_VERTICES:
+        above = _upper_neighbours(n, edges)
+        if above is not None:
+            cliques, masks = flag_cliques(above, where)
+            return Complex._with_vertex_masks(tuple(range(n)), tuple(cliques), masks)
     pairs = sorted({(min(u, v), max(u, v)) for u, v in edges})
     if not flag:
         simplices = [(v,) for v in range(n)] + pairs
         return Complex(tuple(range(n)), tuple(simplices))
-    if n <= MASK_CLIQUES_MAX_VERTICES and all(0 <= u < v < n for u, v in pairs):
-        above = [0] * n
-        for u, v in pairs:
-            above[u] |= 1 << v
-        cliques, masks = flag_cliques(above, where)
-        return Complex._with_vertex_masks(tuple(range(n)), tuple(cliques), masks)
     return Complex(tuple(range(n)), tuple(_flag_cliques_networkx(n, pairs, where)))
+
+
+def _upper_neighbours(n: int, edges) -> list[int] | None:
+    """For each vertex u of ``range(n)``, the bitmask of its neighbours v > u; None when
+    an edge is a loop or leaves ``range(n)`` (the general path then decides)."""
+    above = [0] * n
+    for u, v in edges:
+        if u > v:
+            u, v = v, u
+        if not (type(u) is int and type(v) is int and 0 <= u < v < n):
+            return None
+        above[u] |= 1 << v
+    return above
 
 
 def flag_cliques(above: list[int], where: str = "") -> tuple[list[tuple[int, ...]], list[int]]:
