@@ -1,0 +1,869 @@
+"""Every triangulated closed surface, 2-sphere and 3-sphere on few vertices, one per
+isomorphism class.
+
+Three generators, all exhaustive and isomorph-free:
+
+Closed surfaces (n <= 10 vertices) and combinatorial 3-manifolds (n <= 9 vertices)
+    by *lexicographic enumeration* in the manner of T. Sulanke and F. H. Lutz,
+    "Isomorphism-free lexicographic enumeration of triangulated surfaces and
+    3-manifolds", Eur. J. Combin. 30 (2009) 1965-1979.  Fix the maximal vertex degree d
+    and give vertex 0 degree d with a fixed star: for surfaces the triangles
+    0 i (i+1) around the cycle 1, 2, ..., d; for 3-manifolds the cone from 0 over one
+    labelled 2-sphere on the vertices 1..d per isomorphism class (from the 2-sphere
+    generator below).  Then repeatedly take the lexicographically smallest *open*
+    ridge (an edge in one triangle, a triangle in one tetrahedron) and close it by a
+    new facet whose last vertex w is a vertex already used or the smallest unused
+    label (symmetry breaking: unused labels are interchangeable).  A branch is cut as
+    soon as
+
+    * a ridge would lie in three facets, a vertex degree would exceed d, or more
+      than n vertices would be used;
+    * a link that must become a circle (the link of a vertex of a surface, of an edge
+      of a 3-manifold) closes into a cycle that is not all of it -- in a closed
+      manifold such a link is one circle, and a circle inside a circle is the whole
+      circle -- or something is added at a vertex or edge whose link has closed;
+    * (3-manifolds) a vertex link closes up without being a 2-sphere (connected with
+      Euler characteristic 2).
+
+    A branch without open ridges that used all n vertices is a closed combinatorial
+    manifold (every link a circle, respectively every vertex link a 2-sphere).  Every
+    one is reached: label a vertex of maximal degree 0, its star as fixed (through an
+    isomorphism of its link onto the fixed representative), and every other vertex in
+    the order in which the closing rule meets it; each partial complex of that run is
+    a subcomplex of the manifold, so no rule cuts it.  The labelled results are then
+    reduced to one per isomorphism class by canonical forms.
+
+2-spheres (n <= 12 vertices)
+    by *vertex splitting* from the boundary of the tetrahedron.  Every triangulated
+    2-sphere other than the tetrahedron boundary has a contractible edge (one in no
+    separating triangle; E. Steinitz and H. Rademacher, "Vorlesungen ueber die Theorie
+    der Polyeder", Springer 1934), so every 2-sphere on n vertices arises from one on
+    n - 1 vertices by splitting a vertex v along two of its link vertices a, b: v
+    becomes the edge v v', the arc of the link cycle from a to b stays with v, the
+    other arc goes to v', and the triangles v v' a, v v' b are added.  Counts: OEIS
+    A000109 (1, 1, 2, 5, 14, 50, 233, 1249, 7595 for n = 4..12).
+
+Canonical forms
+    A complex is identified by its *canonical facets*: the facets relabelled by a
+    canonical labelling of the vertex-facet incidence graph (vertices and facets as
+    nodes of two colours), computed by BLISS through python-igraph
+    (``Graph.canonical_permutation``; T. Junttila and P. Kaski, "Engineering an
+    efficient canonical labeling tool for large and sparse graphs", ALENEX 2007).
+    Two complexes have the same canonical facets exactly when they are isomorphic.
+
+Shards
+    Each generator is split by the maximal vertex degree d of its results
+    (:func:`max_degrees`), so that one part is generated without the others.
+
+The numbers of classes found (tests/test_triangulations.py compares them with the
+published tables): closed surfaces on n = 4..10 vertices 1, 1, 3, 9, 43, 655, 42426
+(F. H. Lutz, "Enumeration and random realization of triangulated surfaces", 2006;
+Sulanke-Lutz 2009); combinatorial 3-manifolds on n = 5..9 vertices 1, 2, 5, 39, 1297,
+all 3-spheres but one 9-vertex triangulation of the twisted S^2-bundle over S^1
+(A. Altshuler and L. Steinberg 1976; B. Bagchi and B. Datta, "Uniqueness of Walkup's
+9-vertex 3-dimensional Klein bottle", Discrete Math. 308 (2008)).
+"""
+
+from __future__ import annotations
+
+from functools import lru_cache
+
+import numpy as np
+
+__all__ = ["canonical_facets", "encode_facets", "decode_facets", "max_degrees",
+           "surfaces", "spheres_2", "manifolds_3", "spheres_3", "is_orientable_surface",
+           "MAX_SURFACE_VERTICES", "MAX_SPHERE2_VERTICES", "MAX_MANIFOLD3_VERTICES",
+           "DIGITS"]
+
+MAX_SURFACE_VERTICES = 10
+MAX_SPHERE2_VERTICES = 12
+MAX_MANIFOLD3_VERTICES = 9
+
+# vertex labels in the compact facet code: 0..9 then a..z (at most 36 vertices)
+DIGITS = "0123456789abcdefghijklmnopqrstuvwxyz"
+
+
+# ------------------------------------------------------------------ canonical forms
+def canonical_facets(n: int, facets) -> tuple[tuple[int, ...], ...]:
+    """The facets of a pure complex on vertices 0..n-1, canonically relabelled.
+
+    Definition: take the vertex-facet incidence graph (a node per vertex, coloured 0, a
+    node per facet, coloured 1, an edge for each incidence), its canonical labelling by
+    BLISS, and number the vertices 0..n-1 in the order of their canonical labels;
+    return the relabelled facets, each sorted, in lexicographic order.  Isomorphic
+    complexes, and only they, give the same result.
+
+    >>> canonical_facets(4, [(1, 2, 3), (0, 1, 2), (0, 1, 3), (0, 2, 3)])
+    ((0, 1, 2), (0, 1, 3), (0, 2, 3), (1, 2, 3))
+    >>> canonical_facets(3, [(0, 2), (1, 2)]) == canonical_facets(3, [(0, 1), (0, 2)])
+    True
+
+    Reference: colour-preserving isomorphism of incidence graphs, e.g. B. D. McKay and
+    A. Piperno, "Practical graph isomorphism, II", J. Symb. Comput. 60 (2014) 94-112;
+    BLISS: Junttila-Kaski, ALENEX 2007.
+    """
+    import igraph
+
+    facets = [tuple(f) for f in facets]
+    edges = [(v, n + i) for i, f in enumerate(facets) for v in f]
+    graph = igraph.Graph(n=n + len(facets), edges=edges)
+    permutation = graph.canonical_permutation(color=[0] * n + [1] * len(facets))
+    # igraph's permute_vertices(permutation) puts node permutation[i] at position i:
+    # the canonical label of a node is its position in the permutation
+    label = [0] * len(permutation)
+    for position, node in enumerate(permutation):
+        label[node] = position
+    order = sorted(range(n), key=label.__getitem__)
+    new = [0] * n
+    for position, v in enumerate(order):
+        new[v] = position
+    return tuple(sorted(tuple(sorted(new[v] for v in f)) for f in facets))
+
+
+def encode_facets(facets) -> str:
+    """The compact text of a list of facets: each facet its vertex labels as digits
+    (0-9, then a-z), facets written one after another without separators.
+
+    >>> encode_facets([(0, 1, 2), (0, 1, 10)])
+    '01201a'
+    """
+    return "".join("".join(DIGITS[v] for v in f) for f in facets)
+
+
+def decode_facets(code: str, width: int) -> list[tuple[int, ...]] | None:
+    """The facets spelled by :func:`encode_facets` (``width`` vertices each), or None if
+    ``code`` is not such a text (length, characters).
+
+    >>> decode_facets('01201a', 3)
+    [(0, 1, 2), (0, 1, 10)]
+    >>> decode_facets('0120', 3) is None
+    True
+    """
+    if not isinstance(code, str) or not code or len(code) % width:
+        return None
+    if any(c not in DIGITS for c in code):
+        return None
+    return [tuple(DIGITS.index(c) for c in code[i:i + width])
+            for i in range(0, len(code), width)]
+
+
+def max_degrees(n: int, facets) -> int:
+    """The largest number of neighbours of a vertex (the maximal vertex degree of the
+    1-skeleton) of the complex with these facets on vertices 0..n-1.
+
+    >>> max_degrees(4, [(0, 1, 2), (0, 1, 3)])
+    3
+    """
+    neighbours = [set() for _ in range(n)]
+    for f in facets:
+        for v in f:
+            neighbours[v].update(f)
+    return max(len(s) - 1 for s in neighbours)
+
+
+def is_orientable_surface(facets) -> bool:
+    """Is the closed surface with these triangles orientable?
+
+    Definition: the triangles can be ordered cyclically so that each edge is run
+    through in opposite directions by its two triangles.  Decided by propagating an
+    orientation over the dual graph (a connected closed surface has two orientations or
+    none).
+
+    >>> is_orientable_surface([(0, 1, 2), (0, 1, 3), (0, 2, 3), (1, 2, 3)])
+    True
+
+    Reference: J. R. Munkres, "Elements of Algebraic Topology" (1984), §6 (orientation of
+    a pseudomanifold, as common practice).
+    """
+    facets = [tuple(f) for f in facets]
+    by_edge: dict = {}
+    for i, (a, b, c) in enumerate(facets):
+        for u, v in ((a, b), (b, c), (a, c)):
+            by_edge.setdefault((u, v), []).append(i)
+    sign = [0] * len(facets)
+
+    def directed(i, s):      # the three directed edges of triangle i under orientation s
+        a, b, c = facets[i]
+        cycle = ((a, b), (b, c), (c, a))
+        return cycle if s > 0 else tuple((v, u) for u, v in cycle)
+
+    for start in range(len(facets)):
+        if sign[start]:
+            continue
+        sign[start] = 1
+        stack = [start]
+        while stack:
+            i = stack.pop()
+            for u, v in directed(i, sign[i]):
+                for j in by_edge[(min(u, v), max(u, v))]:
+                    if j == i:
+                        continue
+                    want = -1 if (u, v) in directed(j, 1) else 1
+                    if sign[j] == 0:
+                        sign[j] = want
+                        stack.append(j)
+                    elif sign[j] != want:
+                        return False
+    return True
+
+
+# ------------------------------------------------------------------ compiled searches
+_KERNELS: dict = {}
+
+
+def _kernels():
+    """The two compiled lexicographic searches (numba, compiled on first use, cached)."""
+    if _KERNELS:
+        return _KERNELS
+    import numba
+
+    @numba.njit(cache=True)
+    def surface_path_end(x, p, cnt, opp):
+        # walk the path of link(x) that starts at its end p; return (other end, vertices)
+        prev = p
+        cur = opp[x, p, 0]
+        length = 2
+        while cnt[x, cur] == 2:
+            nxt = opp[x, cur, 0]
+            if nxt == prev:
+                nxt = opp[x, cur, 1]
+            prev = cur
+            cur = nxt
+            length += 1
+        return cur, length
+
+    @numba.njit(cache=True)
+    def surface_link_ok(x, p, q, cnt, opp, deg):
+        # link(x) gains the edge p q: it may close a cycle only if that is all of it
+        if cnt[x, p] == 1 and cnt[x, q] == 1:
+            end, length = surface_path_end(x, p, cnt, opp)
+            if end == q and length != deg[x]:
+                return False
+        return True
+
+    @numba.njit(cache=True)
+    def surface_add(a, b, c, cnt, opp, deg, opened):
+        for k in range(3):
+            if k == 0:
+                u, v, t = a, b, c
+            elif k == 1:
+                u, v, t = a, c, b
+            else:
+                u, v, t = b, c, a
+            m = cnt[u, v]
+            opp[u, v, m] = t
+            opp[v, u, m] = t
+            if m == 0:
+                deg[u] += 1
+                deg[v] += 1
+                opened[u] += 1
+                opened[v] += 1
+            else:
+                opened[u] -= 1
+                opened[v] -= 1
+            cnt[u, v] = m + 1
+            cnt[v, u] = m + 1
+
+    @numba.njit(cache=True)
+    def surface_remove(a, b, c, cnt, deg, opened):
+        for k in range(3):
+            if k == 0:
+                u, v = a, b
+            elif k == 1:
+                u, v = a, c
+            else:
+                u, v = b, c
+            m = cnt[u, v] - 1
+            cnt[u, v] = m
+            cnt[v, u] = m
+            if m == 0:
+                deg[u] -= 1
+                deg[v] -= 1
+                opened[u] -= 1
+                opened[v] -= 1
+            else:
+                opened[u] += 1
+                opened[v] += 1
+
+    @numba.njit(cache=True)
+    def surface_search(n, d):
+        """All labelled closed surfaces on n vertices reached with vertex 0 of degree d
+        (rows of 3 * (2n) vertex numbers, padded with -1)."""
+        width = 2 * n * (n - 1) // 3 + 1           # triangles of a surface: 2 f1 / 3
+        cnt = np.zeros((n, n), dtype=np.int64)
+        opp = np.zeros((n, n, 2), dtype=np.int64)
+        deg = np.zeros(n, dtype=np.int64)
+        opened = np.zeros(n, dtype=np.int64)
+        tris = np.zeros((width + 1, 3), dtype=np.int64)
+        out = np.full((64, width, 3), -1, dtype=np.int64)
+        found = 0
+        if d + 1 > n or d < 3:
+            return out[:0]
+        ntri = 0
+        for i in range(1, d + 1):
+            j = i + 1 if i < d else 1
+            a, b = (i, j) if i < j else (j, i)
+            surface_add(0, a, b, cnt, opp, deg, opened)
+            tris[ntri, 0] = 0
+            tris[ntri, 1] = a
+            tris[ntri, 2] = b
+            ntri += 1
+        used = d + 1
+        ea = np.zeros(width + 1, dtype=np.int64)
+        eb = np.zeros(width + 1, dtype=np.int64)
+        nxt = np.zeros(width + 1, dtype=np.int64)
+        isnew = np.zeros(width + 1, dtype=np.bool_)
+        # the smallest open edge
+        a0 = -1
+        b0 = -1
+        for a in range(n):
+            for b in range(a + 1, n):
+                if cnt[a, b] == 1:
+                    a0 = a
+                    b0 = b
+                    break
+            if a0 >= 0:
+                break
+        level = 0
+        ea[0] = a0
+        eb[0] = b0
+        nxt[0] = 0
+        while level >= 0:
+            a = ea[level]
+            b = eb[level]
+            w = nxt[level]
+            t = opp[a, b, 0]
+            placed = False
+            while w <= used:
+                if w == used and used >= n:
+                    break
+                if w != a and w != b and w != t and cnt[a, w] < 2 and cnt[b, w] < 2 \
+                        and not (deg[w] > 0 and opened[w] == 0):
+                    na = 1 if cnt[a, w] == 0 else 0
+                    nb = 1 if cnt[b, w] == 0 else 0
+                    if deg[a] + na <= d and deg[b] + nb <= d and deg[w] + na + nb <= d:
+                        if surface_link_ok(a, b, w, cnt, opp, deg) and \
+                                surface_link_ok(b, a, w, cnt, opp, deg) and \
+                                surface_link_ok(w, a, b, cnt, opp, deg):
+                            placed = True
+                            break
+                w += 1
+            if not placed:
+                level -= 1
+                if level >= 0:
+                    ntri -= 1
+                    surface_remove(tris[ntri, 0], tris[ntri, 1], tris[ntri, 2],
+                                   cnt, deg, opened)
+                    if isnew[level]:
+                        used -= 1
+                continue
+            nxt[level] = w + 1
+            isnew[level] = w == used
+            if w == used:
+                used += 1
+            x, y, z = a, b, w
+            if z < y:
+                y, z = z, y
+                if y < x:
+                    x, y = y, x
+            surface_add(x, y, z, cnt, opp, deg, opened)
+            tris[ntri, 0] = x
+            tris[ntri, 1] = y
+            tris[ntri, 2] = z
+            ntri += 1
+            a2 = -1
+            b2 = -1
+            for u in range(n):
+                for v in range(u + 1, n):
+                    if cnt[u, v] == 1:
+                        a2 = u
+                        b2 = v
+                        break
+                if a2 >= 0:
+                    break
+            if a2 < 0:
+                if used == n:
+                    if found == out.shape[0]:
+                        bigger = np.full((2 * found, width, 3), -1, dtype=np.int64)
+                        bigger[:found] = out
+                        out = bigger
+                    out[found, :ntri] = tris[:ntri]
+                    found += 1
+                ntri -= 1
+                surface_remove(x, y, z, cnt, deg, opened)
+                if isnew[level]:
+                    used -= 1
+                continue
+            level += 1
+            ea[level] = a2
+            eb[level] = b2
+            nxt[level] = 0
+        return out[:found]
+
+    # ---------------------------------------------------------------- dimension 3
+    @numba.njit(cache=True)
+    def key3(a, b, c):
+        # the triangle {a, b, c} as sorted indices
+        if a > b:
+            a, b = b, a
+        if b > c:
+            b, c = c, b
+        if a > b:
+            a, b = b, a
+        return a, b, c
+
+    @numba.njit(cache=True)
+    def edge_link_ok(u, v, x, y, c3, o3, etri):
+        # link(uv) gains the edge x y: it may close a cycle only if that is all of it
+        a, b, c = key3(u, v, x)
+        if c3[a, b, c] != 1:
+            return True
+        a, b, c = key3(u, v, y)
+        if c3[a, b, c] != 1:
+            return True
+        prev = x
+        a, b, c = key3(u, v, x)
+        cur = o3[a, b, c, 0]
+        length = 2
+        while True:
+            a, b, c = key3(u, v, cur)
+            if c3[a, b, c] != 2:
+                break
+            nxt = o3[a, b, c, 0]
+            if nxt == prev:
+                nxt = o3[a, b, c, 1]
+            prev = cur
+            cur = nxt
+            length += 1
+        if cur == y and length != etri[u, v]:
+            return False
+        return True
+
+    @numba.njit(cache=True)
+    def tet_add(q, c3, o3, etri, eopen, deg, vopen, vtri, vtet):
+        for i in range(4):
+            vtet[q[i]] += 1
+        for omit in range(4):
+            # the triangle without q[omit], its fourth vertex q[omit]
+            a = -1
+            b = -1
+            c = -1
+            for i in range(4):
+                if i != omit:
+                    if a < 0:
+                        a = q[i]
+                    elif b < 0:
+                        b = q[i]
+                    else:
+                        c = q[i]
+            m = c3[a, b, c]
+            o3[a, b, c, m] = q[omit]
+            c3[a, b, c] = m + 1
+            tri = (a, b, c)
+            for k in range(3):
+                u = tri[k]
+                if m == 0:
+                    vtri[u] += 1
+                    vopen[u] += 1
+                else:
+                    vopen[u] -= 1
+            for k in range(3):
+                u = tri[k]
+                v = tri[(k + 1) % 3]
+                if m == 0:
+                    if etri[u, v] == 0:
+                        deg[u] += 1
+                        deg[v] += 1
+                    etri[u, v] += 1
+                    etri[v, u] += 1
+                    eopen[u, v] += 1
+                    eopen[v, u] += 1
+                else:
+                    eopen[u, v] -= 1
+                    eopen[v, u] -= 1
+
+    @numba.njit(cache=True)
+    def tet_remove(q, c3, etri, eopen, deg, vopen, vtri, vtet):
+        for i in range(4):
+            vtet[q[i]] -= 1
+        for omit in range(3, -1, -1):
+            a = -1
+            b = -1
+            c = -1
+            for i in range(4):
+                if i != omit:
+                    if a < 0:
+                        a = q[i]
+                    elif b < 0:
+                        b = q[i]
+                    else:
+                        c = q[i]
+            m = c3[a, b, c] - 1
+            c3[a, b, c] = m
+            tri = (a, b, c)
+            for k in range(3):
+                u = tri[k]
+                if m == 0:
+                    vtri[u] -= 1
+                    vopen[u] -= 1
+                else:
+                    vopen[u] += 1
+            for k in range(3):
+                u = tri[k]
+                v = tri[(k + 1) % 3]
+                if m == 0:
+                    etri[u, v] -= 1
+                    etri[v, u] -= 1
+                    eopen[u, v] -= 1
+                    eopen[v, u] -= 1
+                    if etri[u, v] == 0:
+                        deg[u] -= 1
+                        deg[v] -= 1
+                else:
+                    eopen[u, v] += 1
+                    eopen[v, u] += 1
+
+    @numba.njit(cache=True)
+    def vertex_link_sphere(x, n, c3, etri, deg, vtri, vtet, seen):
+        # is the (closed) link of x a 2-sphere: Euler characteristic 2 and connected
+        if deg[x] - vtri[x] + vtet[x] != 2:
+            return False
+        start = -1
+        for y in range(n):
+            seen[y] = False
+            if y != x and etri[x, y] > 0 and start < 0:
+                start = y
+        stack = np.empty(n, dtype=np.int64)
+        top = 0
+        stack[top] = start
+        top += 1
+        seen[start] = True
+        reached = 1
+        while top > 0:
+            top -= 1
+            y = stack[top]
+            for z in range(n):
+                if z != x and z != y and not seen[z] and etri[x, z] > 0:
+                    a, b, c = key3(x, y, z)
+                    if c3[a, b, c] > 0:
+                        seen[z] = True
+                        reached += 1
+                        stack[top] = z
+                        top += 1
+        return reached == deg[x]
+
+    @numba.njit(cache=True)
+    def manifold_search(n, d, link):
+        """All labelled combinatorial 3-manifolds on n vertices reached with vertex 0 of
+        degree d whose star is the cone over the triangles ``link`` (on 1..d)."""
+        width = n * (n - 1) // 2 - n + 1        # tetrahedra: f3 = f1 - n
+        c3 = np.zeros((n, n, n), dtype=np.int64)
+        o3 = np.zeros((n, n, n, 2), dtype=np.int64)
+        etri = np.zeros((n, n), dtype=np.int64)
+        eopen = np.zeros((n, n), dtype=np.int64)
+        deg = np.zeros(n, dtype=np.int64)
+        vopen = np.zeros(n, dtype=np.int64)
+        vtri = np.zeros(n, dtype=np.int64)
+        vtet = np.zeros(n, dtype=np.int64)
+        seen = np.zeros(n, dtype=np.bool_)
+        tets = np.zeros((width + 1, 4), dtype=np.int64)
+        out = np.full((64, width, 4), -1, dtype=np.int64)
+        found = 0
+        if d + 1 > n:
+            return out[:0]
+        q = np.zeros(4, dtype=np.int64)
+        nt = 0
+        for i in range(link.shape[0]):
+            q[0] = 0
+            q[1] = link[i, 0]
+            q[2] = link[i, 1]
+            q[3] = link[i, 2]
+            tet_add(q, c3, o3, etri, eopen, deg, vopen, vtri, vtet)
+            tets[nt] = q
+            nt += 1
+        used = d + 1
+        fa = np.zeros(width + 1, dtype=np.int64)
+        fb = np.zeros(width + 1, dtype=np.int64)
+        fc = np.zeros(width + 1, dtype=np.int64)
+        nxt = np.zeros(width + 1, dtype=np.int64)
+        isnew = np.zeros(width + 1, dtype=np.bool_)
+        level = 0
+        # the smallest open triangle (the link triangles are open)
+        fa[0] = -1
+        for a in range(n):
+            for b in range(a + 1, n):
+                for c in range(b + 1, n):
+                    if c3[a, b, c] == 1 and fa[0] < 0:
+                        fa[0] = a
+                        fb[0] = b
+                        fc[0] = c
+        nxt[0] = 0
+        while level >= 0:
+            a = fa[level]
+            b = fb[level]
+            c = fc[level]
+            t = o3[a, b, c, 0]
+            w = nxt[level]
+            placed = False
+            while w <= used:
+                if w == used and used >= n:
+                    break
+                ok = w != a and w != b and w != c and w != t
+                if ok and deg[w] > 0 and vopen[w] == 0:
+                    ok = False                          # the link of w has closed
+                if ok:
+                    for k in range(3):
+                        u = a if k == 0 else (b if k == 1 else c)
+                        if etri[u, w] > 0 and eopen[u, w] == 0:
+                            ok = False                  # the link of u w has closed
+                if ok:
+                    x1, y1, z1 = key3(a, b, w)
+                    x2, y2, z2 = key3(a, c, w)
+                    x3, y3, z3 = key3(b, c, w)
+                    if c3[x1, y1, z1] > 1 or c3[x2, y2, z2] > 1 or c3[x3, y3, z3] > 1:
+                        ok = False
+                if ok:
+                    na = 1 if etri[a, w] == 0 else 0
+                    nb = 1 if etri[b, w] == 0 else 0
+                    nc = 1 if etri[c, w] == 0 else 0
+                    if deg[a] + na > d or deg[b] + nb > d or deg[c] + nc > d or \
+                            deg[w] + na + nb + nc > d:
+                        ok = False
+                if ok:
+                    ok = (edge_link_ok(a, b, c, w, c3, o3, etri)
+                          and edge_link_ok(a, c, b, w, c3, o3, etri)
+                          and edge_link_ok(b, c, a, w, c3, o3, etri)
+                          and edge_link_ok(a, w, b, c, c3, o3, etri)
+                          and edge_link_ok(b, w, a, c, c3, o3, etri)
+                          and edge_link_ok(c, w, a, b, c3, o3, etri))
+                if ok:
+                    # sorted tetrahedron
+                    q[0] = a
+                    q[1] = b
+                    q[2] = c
+                    q[3] = w
+                    for i in range(3, 0, -1):
+                        if q[i] < q[i - 1]:
+                            s = q[i]
+                            q[i] = q[i - 1]
+                            q[i - 1] = s
+                    tet_add(q, c3, o3, etri, eopen, deg, vopen, vtri, vtet)
+                    for i in range(4):
+                        x = q[i]
+                        if vopen[x] == 0 and not vertex_link_sphere(
+                                x, n, c3, etri, deg, vtri, vtet, seen):
+                            ok = False
+                    if ok:
+                        placed = True
+                        break
+                    tet_remove(q, c3, etri, eopen, deg, vopen, vtri, vtet)
+                w += 1
+            if not placed:
+                level -= 1
+                if level >= 0:
+                    nt -= 1
+                    tet_remove(tets[nt], c3, etri, eopen, deg, vopen, vtri, vtet)
+                    if isnew[level]:
+                        used -= 1
+                continue
+            nxt[level] = w + 1
+            isnew[level] = w == used
+            if w == used:
+                used += 1
+            tets[nt] = q
+            nt += 1
+            a2 = -1
+            b2 = -1
+            c2 = -1
+            for u in range(n):
+                for v in range(u + 1, n):
+                    if etri[u, v] == 0 or eopen[u, v] == 0:
+                        continue
+                    for z in range(v + 1, n):
+                        if c3[u, v, z] == 1:
+                            a2 = u
+                            b2 = v
+                            c2 = z
+                            break
+                    if a2 >= 0:
+                        break
+                if a2 >= 0:
+                    break
+            if a2 < 0:
+                if used == n:
+                    if found == out.shape[0]:
+                        bigger = np.full((2 * found, width, 4), -1, dtype=np.int64)
+                        bigger[:found] = out
+                        out = bigger
+                    out[found, :nt] = tets[:nt]
+                    found += 1
+                nt -= 1
+                tet_remove(tets[nt], c3, etri, eopen, deg, vopen, vtri, vtet)
+                if isnew[level]:
+                    used -= 1
+                continue
+            level += 1
+            fa[level] = a2
+            fb[level] = b2
+            fc[level] = c2
+            nxt[level] = 0
+        return out[:found]
+
+    _KERNELS["surface"] = surface_search
+    _KERNELS["manifold"] = manifold_search
+    return _KERNELS
+
+
+def _classes(n: int, rows: np.ndarray) -> list[tuple[tuple[int, ...], ...]]:
+    """The distinct canonical facet lists among the labelled complexes ``rows``
+    (facets padded with -1), in order of first appearance."""
+    seen: dict = {}
+    for row in rows:
+        facets = [tuple(f) for f in row.tolist() if f[0] >= 0]
+        form = canonical_facets(n, facets)
+        seen.setdefault(form, None)
+    return list(seen)
+
+
+# ------------------------------------------------------------------ closed surfaces
+@lru_cache(maxsize=None)
+def surfaces(n: int, d: int) -> tuple[tuple[tuple[int, ...], ...], ...]:
+    """Every closed surface on n vertices of maximal vertex degree d, one per
+    isomorphism class, as canonical facet lists, sorted by their code.
+
+    Definition: a closed surface is a connected pure 2-complex in which every edge lies
+    in two triangles and every vertex link is one circle.
+
+    >>> [len(surfaces(6, d)) for d in range(3, 6)]
+    [0, 1, 2]
+
+    Notes: lexicographic enumeration (see the module docstring), n <= 10.
+    Reference: Sulanke-Lutz 2009 (method and counts).
+    """
+    if not 4 <= n <= MAX_SURFACE_VERTICES or not 3 <= d <= n - 1:
+        return ()
+    rows = _kernels()["surface"](n, d)
+    return tuple(sorted(_classes(n, rows), key=encode_facets))
+
+
+# ------------------------------------------------------------------ 2-spheres
+def _split_children(n: int, facets, d: int):
+    """The labelled 2-spheres on n + 1 vertices obtained from the 2-sphere ``facets`` on
+    n vertices by one vertex split, those of maximal vertex degree d only.
+
+    Splitting v along the link vertices a = c_i and b = c_j (i < j) of its link cycle
+    c_0 .. c_{k-1}: v keeps the triangles v c_m c_{m+1} for i <= m < j, the new vertex n
+    takes the others (v replaced by n), and the triangles v n a, v n b are added."""
+    around: list[dict] = [dict() for _ in range(n)]     # v -> {x: [neighbours of x in Lk v]}
+    for a, b, c in facets:
+        for v, x, y in ((a, b, c), (b, a, c), (c, a, b)):
+            around[v].setdefault(x, []).append(y)
+            around[v].setdefault(y, []).append(x)
+    degree = [len(around[v]) for v in range(n)]
+    by_degree = sorted(range(n), key=lambda u: -degree[u])
+    rest = [f for f in facets]
+    for v in range(n):
+        start = min(around[v])
+        cycle, prev, cur = [start], None, start
+        while True:
+            x, y = around[v][cur]
+            step = x if x != prev else y
+            if step == start:
+                break
+            cycle.append(step)
+            prev, cur = cur, step
+        k = len(cycle)
+        others = [f for f in rest if v not in f]
+        for i in range(k):
+            for j in range(i + 1, k):
+                a, b = cycle[i], cycle[j]
+                top = max(j - i + 2, k - (j - i) + 2, degree[a] + 1, degree[b] + 1)
+                for u in by_degree:
+                    if u not in (v, a, b):
+                        top = max(top, degree[u])
+                        break
+                if top != d:
+                    continue
+                kept = [tuple(sorted((v, cycle[m], cycle[m + 1]))) for m in range(i, j)]
+                moved = [tuple(sorted((cycle[m], cycle[(m + 1) % k]))) + (n,)
+                         for m in list(range(j, k)) + list(range(0, i))]
+                yield others + kept + moved + [(a, v, n) if a < v else (v, a, n),
+                                               (b, v, n) if b < v else (v, b, n)]
+
+
+@lru_cache(maxsize=None)
+def _sphere_level(n: int) -> tuple[tuple[tuple[int, ...], ...], ...]:
+    """All 2-spheres on n vertices (canonical facet lists, sorted by code)."""
+    if n == 4:
+        return (canonical_facets(4, [(0, 1, 2), (0, 1, 3), (0, 2, 3), (1, 2, 3)]),)
+    return tuple(sorted((f for d in range(3, n) for f in spheres_2(n, d)),
+                        key=encode_facets))
+
+
+@lru_cache(maxsize=None)
+def spheres_2(n: int, d: int) -> tuple[tuple[tuple[int, ...], ...], ...]:
+    """Every triangulated 2-sphere on n vertices of maximal vertex degree d, one per
+    isomorphism class, as canonical facet lists sorted by their code.
+
+    >>> [len(spheres_2(6, d)) for d in range(3, 6)]
+    [0, 1, 1]
+
+    Notes: vertex splitting of every sphere on n - 1 vertices (all of them, cached);
+    only the children of maximal degree d are canonicalised.
+    Reference: OEIS A000109; Steinitz-Rademacher 1934 (contractible edges).
+    """
+    if not 4 <= n <= MAX_SPHERE2_VERTICES or not 3 <= d <= n - 1:
+        return ()
+    if n == 4:
+        return _sphere_level(4) if d == 3 else ()
+    seen: dict = {}
+    for parent in _sphere_level(n - 1):
+        for child in _split_children(n - 1, parent, d):
+            seen.setdefault(canonical_facets(n, child), None)
+    return tuple(sorted(seen, key=encode_facets))
+
+
+# ------------------------------------------------------------------ 3-manifolds
+@lru_cache(maxsize=None)
+def manifolds_3(n: int, d: int) -> tuple[tuple[tuple[int, ...], ...], ...]:
+    """Every combinatorial 3-manifold on n vertices of maximal vertex degree d, one per
+    isomorphism class (canonical facet lists sorted by their code).
+
+    Definition: a pure 3-complex in which every vertex link is a triangulated 2-sphere,
+    connected.
+
+    >>> len(manifolds_3(5, 4))
+    1
+
+    Notes: lexicographic enumeration from the star of vertex 0, one search per class of
+    its link (a 2-sphere on d vertices), n <= 9.
+    Reference: Sulanke-Lutz 2009; Altshuler-Steinberg 1976 (n = 9).
+    """
+    if not 5 <= n <= MAX_MANIFOLD3_VERTICES or not 4 <= d <= n - 1:
+        return ()
+    search = _kernels()["manifold"]
+    seen: dict = {}
+    for link in _sphere_level(d):
+        shifted = np.array([[v + 1 for v in f] for f in link], dtype=np.int64)
+        for form in _classes(n, search(n, d, shifted)):
+            seen.setdefault(form, None)
+    return tuple(sorted(seen, key=encode_facets))
+
+
+@lru_cache(maxsize=None)
+def spheres_3(n: int, d: int) -> tuple[tuple[tuple[int, ...], ...], ...]:
+    """The combinatorial 3-manifolds of :func:`manifolds_3` that are 3-spheres.
+
+    >>> len(spheres_3(6, 5)), len(spheres_3(6, 4))
+    (1, 1)
+
+    Notes: decided by :func:`verifier.invariants.is_sphere` (homology, then a collapse
+    of the sphere minus a facet to a point).
+    Reference: Altshuler-Steinberg 1976: every combinatorial 3-manifold on <= 9
+    vertices is a sphere except one on 9 vertices.
+    """
+    from ..complex import Complex
+    from ..invariants.manifolds import is_sphere
+
+    return tuple(f for f in manifolds_3(n, d)
+                 if is_sphere(Complex._from_index_sets(tuple(range(n)), f)))
