@@ -76,6 +76,7 @@ from .family import (MAX_COUNT, MAX_RANDOM_VERTICES, MAX_SIMPLICES, Family, Fami
                      FamilyType, Param, build_family, describe_types)
 from .named import CATALOG, FILE
 from .random_models import LINIAL_MESHULAM, RANDOM_FLAG, RANDOM_GEOMETRIC, RANDOM_PURE
+from .surfaces import SPHERES, SURFACES
 
 __all__ = ["FAMILIES", "FamilyError", "Family", "FamilyType", "Param", "make_family",
            "describe", "MAX_COUNT", "MAX_SIMPLICES", "MAX_RANDOM_VERTICES"]
@@ -84,7 +85,7 @@ FAMILIES: dict[str, FamilyType] = {
     kind.name: kind for kind in (
         ALL_COMPLEXES, GRAPHS, RANDOM_FLAG, RANDOM_PURE, LINIAL_MESHULAM,
         RANDOM_GEOMETRIC, CATALOG, CYCLES, FILE, REFINE, SKELETON, CONE, SUSPENSION, JOIN,
-        PRODUCT)
+        PRODUCT, SURFACES, SPHERES)
 }
 
 

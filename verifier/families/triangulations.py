@@ -855,7 +855,7 @@ def spheres_3(n: int, d: int) -> tuple[tuple[tuple[int, ...], ...], ...]:
     """The combinatorial 3-manifolds of :func:`manifolds_3` that are 3-spheres.
 
     >>> len(spheres_3(6, 5)), len(spheres_3(6, 4))
-    (1, 1)
+    (2, 0)
 
     Notes: decided by :func:`verifier.invariants.is_sphere` (homology, then a collapse
     of the sphere minus a facet to a point).
