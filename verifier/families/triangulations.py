@@ -51,9 +51,10 @@ Canonical forms
     efficient canonical labeling tool for large and sparse graphs", ALENEX 2007).
     Two complexes have the same canonical facets exactly when they are isomorphic.
 
-Shards
-    Each generator is split by the maximal vertex degree d of its results
-    (:func:`max_degrees`), so that one part is generated without the others.
+Parts
+    Each generator is split by the maximal vertex degree d of its results, so that one
+    part is generated without the others: the lexicographic searches fix d at the
+    start, vertex splitting canonicalises only the children of maximal degree d.
 
 The numbers of classes found (tests/test_triangulations.py compares them with the
 published tables): closed surfaces on n = 4..10 vertices 1, 1, 3, 9, 43, 655, 42426
@@ -70,8 +71,7 @@ from functools import lru_cache
 
 import numpy as np
 
-__all__ = ["canonical_facets", "encode_facets", "decode_facets", "max_degrees",
-           "surfaces", "spheres_2", "manifolds_3", "spheres_3", "is_orientable_surface",
+__all__ = ["canonical_facets", "encode_facets", "decode_facets", "surfaces", "spheres_2", "manifolds_3", "spheres_3", "is_orientable_surface",
            "MAX_SURFACE_VERTICES", "MAX_SPHERE2_VERTICES", "MAX_MANIFOLD3_VERTICES",
            "DIGITS"]
 
@@ -145,20 +145,6 @@ def decode_facets(code: str, width: int) -> list[tuple[int, ...]] | None:
         return None
     return [tuple(DIGITS.index(c) for c in code[i:i + width])
             for i in range(0, len(code), width)]
-
-
-def max_degrees(n: int, facets) -> int:
-    """The largest number of neighbours of a vertex (the maximal vertex degree of the
-    1-skeleton) of the complex with these facets on vertices 0..n-1.
-
-    >>> max_degrees(4, [(0, 1, 2), (0, 1, 3)])
-    3
-    """
-    neighbours = [set() for _ in range(n)]
-    for f in facets:
-        for v in f:
-            neighbours[v].update(f)
-    return max(len(s) - 1 for s in neighbours)
 
 
 def is_orientable_surface(facets) -> bool:
@@ -287,9 +273,9 @@ def _kernels():
 
     @numba.njit(cache=True)
     def surface_search(n, d):
-        """All labelled closed surfaces on n vertices reached with vertex 0 of degree d
-        (rows of 3 * (2n) vertex numbers, padded with -1)."""
-        width = 2 * n * (n - 1) // 3 + 1           # triangles of a surface: 2 f1 / 3
+        """All labelled closed surfaces on n vertices reached with vertex 0 of degree d,
+        one row of triangles each (padded with -1)."""
+        width = n * (n - 1) // 3 + 1        # triangles of a surface: f2 = 2 f1 / 3
         cnt = np.zeros((n, n), dtype=np.int64)
         opp = np.zeros((n, n, 2), dtype=np.int64)
         deg = np.zeros(n, dtype=np.int64)
