@@ -17,6 +17,7 @@
 
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 import random
@@ -322,3 +323,21 @@ def test_spec_of_a_table_without_connected_is_unchanged_and_bounds():
     flag = make_family({"family": "graphs", "max_vertices": 10, "as": "flag"})
     assert flag.f_bound() == tuple(comb(10, k) for k in range(1, 11))
     assert make_family({"family": "graphs", "max_vertices": 10}).f_bound() == (10, 45)
+
+
+def test_ids_and_order_are_the_recorded_ones():
+    # Regression record of this implementation (BLISS in python-igraph 1.0, pinned in
+    # pyproject.toml), not a mathematical fact: if it changes, the ids of graphs on 8 or
+    # more vertices in stored results and certificates have changed.
+    petersen = nx.petersen_graph()
+    code = canonical_code(10, graph_code(10, petersen.edges()))
+    assert graph_id(10, code) == "graphs/10:1c024148e08e"
+    assert graph_id(9, canonical_code(9, graph_code(9, nx.cycle_graph(9).edges()))) == \
+        "graphs/9:c04082113"
+    family = make_family({"family": "graphs", "max_vertices": 10, "min_vertices": 10})
+    assert nx.is_isomorphic(family.get("graphs/10:1c024148e08e").graph(), petersen)
+    eight = make_family({"family": "graphs", "min_vertices": 8, "max_vertices": 8})
+    ids = [case_id for case_id, _ in eight.shard_cases("8/p0000-1043")]
+    assert ids[:3] == ["graphs/8:0000000", "graphs/8:8000000", "graphs/8:c000000"]
+    assert hashlib.sha256(" ".join(ids).encode()).hexdigest() == \
+        "ab9f723d6d474d32136c38a7b84c279c475284d42eaf84ff434797365b95b47f"

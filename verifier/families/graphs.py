@@ -280,7 +280,8 @@ GRAPHS = FamilyType(
         Param.integer("max_vertices", 1, MAX_GENERATED_VERTICES,
                       "largest number of vertices: up to 7 the graph atlas (1,252 graphs, "
                       "planned case by case); 8 vertices 12,346 graphs, 9: 274,668 (about "
-                      "10 s to generate), 10: 12,005,168 (a few minutes over 550 shards); "
+                      "7 s to generate), 10: 12,005,168 (about 3.5 min on one core over "
+                      "550 shards); "
                       "11: 1,018,997,864 graphs in 48,021 shards, only sensible on a "
                       "cluster (each worker first generates the 12,005,168 graphs on 10 "
                       "vertices)", default=7),
