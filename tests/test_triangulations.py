@@ -277,7 +277,7 @@ def test_bad_parameters_are_refused():
                       "got 'yes'",
         "surfaces-3": "family 'surfaces': missing required parameter 'vertices' (an integer "
                       "n or a pair [lo, hi], 4 <= lo <= hi <= 10: numbers of vertices (10 "
-                      "vertices: 42,426 classes, about a minute and a half to generate))",
+                      "vertices: 42,426 classes, a few seconds to generate))",
         "spheres-0": "family 'spheres', parameter 'vertices': for dimension 3 must be an "
                      "integer n or a pair [lo, hi] with 5 <= lo <= hi <= 9; got [4, 6]",
         "spheres-1": "family 'spheres': parameter 'dimension' must be an integer, 2 <= "

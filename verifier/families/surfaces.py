@@ -264,8 +264,8 @@ SURFACES = FamilyType(
             "one Euler characteristic and/or orientability",
     params=(
         Param.integer_range("vertices", 4, MAX_SURFACE_VERTICES,
-                            "numbers of vertices (10 vertices: 42,426 classes, about a "
-                            "minute and a half to generate)"),
+                            "numbers of vertices (10 vertices: 42,426 classes, a few "
+                            "seconds to generate)"),
         _optional_euler(),
         _optional_orientable(),
     ),
