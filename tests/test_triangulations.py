@@ -186,11 +186,17 @@ def test_ids_are_spelled_in_the_compact_code():
 
 def test_shards_and_sizes_are_planned_without_generating():
     fam = family(family="surfaces", vertices=[8, 9])
-    assert fam.shards() == [f"8/d{d}" for d in range(3, 8)] + [f"9/d{d}" for d in range(3, 9)]
+    # the shards left out are empty: largest degree >= average degree 2 f1 / n, with
+    # f1 >= 3n - 6 for surfaces (Euler) and f1 >= 4n - 10 for 3-manifolds (Walkup 1970)
+    assert fam.shards() == [f"8/d{d}" for d in range(5, 8)] + [f"9/d{d}" for d in range(5, 9)]
+    assert family(family="surfaces", vertices=[4, 6]).shards() == [
+        "4/d3", "5/d4", "6/d4", "6/d5"]
     assert fam.size() == 43 + 655          # Lutz's tables (from memory)
     assert family(family="surfaces", vertices=9, euler=0).size() is None
     assert family(family="spheres", dimension=3, vertices=9).shards() == [
-        f"9/d{d}" for d in range(4, 9)]
+        f"9/d{d}" for d in range(6, 9)]
+    assert family(family="spheres", dimension=3, vertices=[5, 7]).shards() == [
+        "5/d4", "6/d5", "7/d6"]
     assert family(family="spheres", dimension=3, vertices=[5, 9]).size() == 1 + 2 + 5 + 39 + 1296
     assert family(family="spheres", dimension=2, vertices=12).f_bound() == (12, 30, 20)
 

@@ -22,7 +22,8 @@ tetrahedron.  ``get`` rebuilds a case from its id alone and refuses an id that i
 the canonical code of a member of the family.
 
 Both families are planned in shards: ``"<n>/d<k>"`` holds the cases on n vertices whose
-largest vertex degree is k (the generators produce each such part on its own).
+largest vertex degree is k (the generators produce each such part on its own); k runs
+from the least possible largest degree (from the average degree) to n - 1.
 ``size()`` is the published number of classes when no filter is set (``surfaces``) and
 always for ``spheres``; with an ``euler`` or ``orientable`` filter it is None (not
 known without enumerating).
@@ -100,7 +101,10 @@ class _Exhaustive(Family):
         return lo, hi
 
     def _degrees(self, n: int) -> range:
-        return range(3, n)
+        """The largest vertex degrees of the shards on n vertices.  Those left out are
+        empty: the largest degree is at least the average 2 f1 / n, and a closed
+        surface has f1 = 3 (n - chi) >= 3n - 6."""
+        return range(-(-(6 * n - 12) // n), n)
 
     def _classes(self, n: int, d: int):
         raise NotImplementedError
@@ -216,7 +220,12 @@ class Spheres(_Exhaustive):
         return f"spheres/{self.params['dimension']}"
 
     def _degrees(self, n: int) -> range:
-        return range(self.params["dimension"] + 1, n)
+        """As for surfaces; a 3-manifold has f1 >= 4n - 10 (D. Walkup, "The lower bound
+        conjecture for 3- and 4-manifolds", Acta Math. 125 (1970) 75-107), so its largest
+        degree is at least (8n - 20) / n."""
+        if self.params["dimension"] == 2:
+            return super()._degrees(n)
+        return range(-(-(8 * n - 20) // n), n)
 
     def _classes(self, n, d):
         return spheres_2(n, d) if self.params["dimension"] == 2 else spheres_3(n, d)
