@@ -163,15 +163,16 @@ def _swappable(u, v, facets, is_facet):
 @njit(cache=True)
 def canonical_rows(n, masks):
     """The canonical form of the complex on vertices 0..n-1 (n <= 10) whose simplices
-    have the bitmasks ``masks``: one row per facet, the relabelled facet's vertices in
-    increasing order padded with -1, the rows in increasing (lexicographic) order.
+    have the bitmasks ``masks``, as ``(vertices, ends)``: the relabelled facets, each
+    with its vertices in increasing order, the facets in increasing (lexicographic)
+    order, written one after the other in ``vertices``; facet i is
+    ``vertices[ends[i - 1]:ends[i]]`` (with ends[-1] read as 0).
 
-    >>> canonical_rows(3, np.array([1, 2, 4, 3])).tolist()   # an edge and a point
-    [[0, -1, -1], [1, 2, -1]]
+    >>> [a.tolist() for a in canonical_rows(3, np.array([1, 2, 4, 3]))]  # edge and point
+    [[0, 1, 2], [1, 3]]
     """
-    rows_out = np.full((0, max(n, 1)), -1, np.int64)
     if n == 0:
-        return rows_out
+        return np.zeros(0, np.int64), np.zeros(0, np.int64)
     base = n + 1
     is_simplex = np.zeros(1 << n, np.bool_)
     for m in masks:
@@ -294,16 +295,18 @@ def canonical_rows(n, masks):
             child_start[target + 2:ncells + 2] = start[target + 1:ncells + 1]
             stack_cells[depth] = ncells + 1
             depth += 1
-    rows_out = np.full((nf, n), -1, np.int64)
+    vertices = np.empty(nf * n, np.int64)
+    ends = np.empty(nf, np.int64)
+    k = 0
     for i in range(nf):
         value = best[i]
         for q in range(n - 1, -1, -1):
             digits[q] = value % base
             value //= base
-        k = 0
         for q in range(n):
             if digits[q] == 0:
                 break
-            rows_out[i, k] = digits[q] - 1
+            vertices[k] = digits[q] - 1
             k += 1
-    return rows_out
+        ends[i] = k
+    return vertices[:k], ends

@@ -528,8 +528,9 @@ class Complex:
             if 0 < self.n_vertices <= CANONICAL_MAX_VERTICES:
                 from .canonical_kernels import canonical_rows
 
-                rows = canonical_rows(self.n_vertices, self.vertex_masks()).tolist()
-                return tuple(tuple(v for v in row if v >= 0) for row in rows)
+                vertices, ends = canonical_rows(self.n_vertices, self.vertex_masks())
+                vertices, ends = vertices.tolist(), ends.tolist()
+                return tuple(tuple(vertices[a:b]) for a, b in zip([0] + ends, ends))
             return _canonical_form(self)
         return self._cached("canonical_form", compute)
 
