@@ -327,7 +327,9 @@ def time_limit(deadline: float | None, seconds: float | None):
 
     Uses an interval timer (SIGALRM) in the main thread of the process, restoring any
     timer and handler that were there; elsewhere (worker threads) only the evaluator's
-    own checks between steps apply.  Nested uses keep the outer deadline.
+    own checks between steps apply.  Nested uses keep the outer timer (one timer can
+    serve several steps, e.g. building a case and judging it), and each use turns a
+    ring inside it into LimitExceeded itself.
     """
     usable = (deadline is not None and hasattr(signal, "setitimer")
               and threading.current_thread() is threading.main_thread())
@@ -336,6 +338,10 @@ def time_limit(deadline: float | None, seconds: float | None):
             _TIMER["depth"] += 1
         try:
             yield
+        except _TimeUp:      # the outer timer rang: stopped here, in this use's words
+            if not usable:
+                raise
+            raise LimitExceeded(f"evaluation took longer than {seconds} s", "seconds") from None
         finally:
             if usable:
                 _TIMER["depth"] -= 1

@@ -94,6 +94,21 @@ def evaluate_case(claim: Claim, case_id: str, limits: Limits, env: dict | None =
     record = {"claim": claim.name, "case_id": case_id, "family": family_label(claim, case_id)}
     deadline = time.monotonic() + limits.seconds if limits.seconds is not None else None
     try:
+        # one interval timer for building and judging; each step turns a ring inside it
+        # into its own LimitExceeded (a nested time_limit)
+        with time_limit(deadline, limits.seconds):
+            record.update(_build_and_judge(claim, case_id, limits, deadline, record, env))
+    except LimitExceeded as error:   # the deadline passed between the two steps
+        record.update(outcome="limit", message=f"{error.limit}: {error.message}")
+    record["seconds"] = time.perf_counter() - start
+    return record
+
+
+def _build_and_judge(claim: Claim, case_id: str, limits: Limits, deadline: float | None,
+                     record: dict, env: dict | None) -> dict:
+    """The outcome fields of a case's record: its complexes built (unless ``env`` brings
+    them) and hashed into ``record``, then judged."""
+    try:
         with time_limit(deadline, limits.seconds):
             if env is None:
                 env = complexes_of(claim, case_id)
@@ -101,22 +116,14 @@ def evaluate_case(claim: Claim, case_id: str, limits: Limits, env: dict | None =
             record["sizes"] = {v: [env[v].n_vertices, len(env[v].simplices)]
                                for v in claim.variables}      # for `verifier cases`
     except LimitExceeded as error:
-        record.update(complex_hash="", outcome="limit",
-                      message=f"{error.limit}: building the case: {error.message}")
-        record["seconds"] = time.perf_counter() - start
-        return record
+        return {"complex_hash": "", "outcome": "limit",
+                "message": f"{error.limit}: building the case: {error.message}"}
     except MemoryError:
-        record.update(complex_hash="", outcome="limit",
-                      message=f"{memory_reason(limits)} (building the case)")
-        record["seconds"] = time.perf_counter() - start
-        return record
+        return {"complex_hash": "", "outcome": "limit",
+                "message": f"{memory_reason(limits)} (building the case)"}
     except Exception as error:  # a family that cannot build its case: recorded, not fatal
-        record.update(complex_hash="", outcome="error", message=f"building the case: {error}")
-        record["seconds"] = time.perf_counter() - start
-        return record
-    record.update(_judge(claim, env, limits, deadline))
-    record["seconds"] = time.perf_counter() - start
-    return record
+        return {"complex_hash": "", "outcome": "error", "message": f"building the case: {error}"}
+    return _judge(claim, env, limits, deadline)
 
 
 def memory_reason(limits: Limits) -> str:
