@@ -326,9 +326,13 @@ def test_surfaces_with_10_vertices_by_type():
     # Lutz's tables, from memory: 42426 surfaces with 10 vertices: 233 spheres (OEIS
     # A000109, looked up), 2109 tori, 865 of genus 2, 20 of genus 3; 1210 RP^2, 4462 Klein
     # bottles, 11784 N_3, 13657 N_4, 7050 N_5, 1022 N_6, 14 N_7
-    assert types_on(10) == Counter({"S0": 233, "S1": 2109, "S2": 865, "S3": 20, "N1": 1210,
-                                    "N2": 4462, "N3": 11784, "N4": 13657, "N5": 7050,
-                                    "N6": 1022, "N7": 14})
+    cases = list(family(family="surfaces", vertices=10))
+    assert Counter(type_name(K) for _, K in cases) == Counter({
+        "S0": 233, "S1": 2109, "S2": 865, "S3": 20, "N1": 1210, "N2": 4462, "N3": 11784,
+        "N4": 13657, "N5": 7050, "N6": 1022, "N7": 14})
+    assert all(is_closed_manifold(K) for _, K in cases)
+    hashes = {K.content_hash for _, K in cases}       # individualisation-refinement
+    assert len(hashes) == len(cases)
 
 
 @pytest.mark.slow
