@@ -61,6 +61,12 @@ Parts
     part is generated without the others: the lexicographic searches fix d at the
     start, vertex splitting canonicalises only the children of maximal degree d.
 
+Measured on one core (numba's disk cache warm; compiling both searches once takes
+about 15 s more): every closed surface with <= 9 vertices (712 classes) 0.7 s, with 10
+vertices (42,426) 5.5 s; every 2-sphere with <= 12 vertices (9,150) 7.6 s; every
+combinatorial 3-manifold with <= 9 vertices (1,344) 1.7 s, and the 3-spheres among
+them (``is_sphere`` on each) 2.9 s.
+
 The numbers of classes found (tests/test_triangulations.py compares them with the
 published tables): closed surfaces on n = 4..10 vertices 1, 1, 3, 9, 43, 655, 42426
 (F. H. Lutz, "Enumeration and random realization of triangulated surfaces", 2006;
