@@ -162,8 +162,41 @@ def test_the_check_rejects_a_wrong_candidate():
         x, y = rng.randrange(len(K)), rng.randrange(len(K))
         wrong = g.copy()
         wrong[x, y] += rng.choice([-1, 1])
-        assert not mask_kernels.is_connection_inverse(K.vertex_masks(), wrong)
-        assert not mask_kernels.is_connection_inverse(K.vertex_masks(), np.zeros_like(g))
+        for check in (mask_kernels.is_connection_inverse,
+                      mask_kernels.is_connection_inverse_by_faces):
+            assert check(K.vertex_masks(), g)
+            assert not check(K.vertex_masks(), wrong)
+            assert not check(K.vertex_masks(), np.zeros_like(g))
+
+
+def test_face_summed_check_equals_the_literal_product():
+    # reference: L g computed from the definition L[x, t] = [x meets t] with numpy
+    # (int64, entries far below 2^63), compared with the identity; the face-summed check
+    # must agree with it on right and on perturbed candidates
+    import numpy as np
+    from verifier.exact import mask_kernels
+    rng = random.Random(31)
+    for _ in range(200):
+        n = rng.randint(1, 9)
+        K = graph_complex(n, gnp_edges(rng, n, rng.random()), True, "test")
+        masks = K.vertex_masks()
+        g, ok = mask_kernels.checked_green(masks)
+        candidate = g.copy()
+        if rng.random() < 0.5:
+            candidate[rng.randrange(len(K)), rng.randrange(len(K))] += rng.choice([-2, 1])
+        L = ((masks[:, None] & masks[None, :]) != 0).astype(np.int64)
+        literal = bool(np.array_equal(L @ candidate, np.identity(len(K), dtype=np.int64)))
+        assert mask_kernels.is_connection_inverse_by_faces(masks, candidate) == literal
+        assert ok
+
+
+def test_masks_not_closed_under_faces_are_not_verified():
+    # {1}, {2}, {1, 2, 3} without its other faces is no simplicial complex: the face
+    # lists miss {3}, {1, 3}, ..., so nothing is verified (common practice, no source)
+    import numpy as np
+    from verifier.exact import mask_kernels
+    masks = np.array([0b10, 0b100, 0b1110], dtype=np.int64)
+    assert not mask_kernels.checked_green(masks)[1]
 
 
 def test_large_complexes_keep_the_general_path():

@@ -105,8 +105,9 @@ def green(K: Complex) -> Matrix:
     Notes: complexes with at most ``MASK_GREEN_MAX`` simplices on at most
     ``MASK_MAX_VERTICES`` vertices take the bitmask kernels of
     :mod:`verifier.exact.mask_kernels`: the star formula summed over the faces of each
-    simplex and the literal check L g = I, both in int64 arithmetic that provably cannot
-    overflow there (|entries of g| <= n, partial sums of L g <= n^2).  Otherwise, up to
+    simplex and the exact check L g = I (the product summed over faces by the binomial
+    identity [x meets t] = sum over non-empty S in x and t of (-1)^(|S| + 1)), both in
+    int64 arithmetic that provably cannot overflow there (partial sums <= n^3).  Otherwise, up to
     ``LITERAL_CHECK_MAX`` simplices the check is the product L g compared with I.  Beyond, that product costs sum over k of |column k of L| |row k of g|
     (4.4 * 10^9 multiply-adds for a 3-manifold with 226,208 simplices, where L has 1.6 *
     10^8 nonzeros), so L g = I is proved from checked factors instead: (1) L = Z^T D Z
