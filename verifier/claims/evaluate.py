@@ -631,6 +631,10 @@ def _predicted_simplices(name: str, args) -> int | None:
     return None
 
 
+_BUILDERS = frozenset({"refine", "join", "product", "union", "cone", "suspension"})
+# the calls whose result size _predicted_simplices predicts (None for every other name)
+
+
 def _guard_size(node: Node, args, ctx: Context):
     """Refuse, before it starts, a call whose result would pass a size limit."""
     from ..complex import Complex
@@ -641,7 +645,7 @@ def _guard_size(node: Node, args, ctx: Context):
             raise LimitExceeded(f"{name}: {len(a.simplices)} simplices exceed the "
                                 f"matrix order limit {limits.max_matrix_order}",
                                 "max_matrix_order", node.place())
-    predicted = _predicted_simplices(name, args)
+    predicted = _predicted_simplices(name, args) if name in _BUILDERS else None
     if predicted is not None and predicted > limits.max_simplices:
         raise LimitExceeded(f"{name}: the result would have {predicted:,} simplices, more than "
                             f"the limit of {limits.max_simplices:,}", "max_simplices",
