@@ -35,9 +35,21 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-__all__ = ["MAX_VERTICES", "canonical_rows"]
+__all__ = ["MAX_VERTICES", "load", "canonical_rows"]
 
 MAX_VERTICES = 10
+_LOADED = []
+
+
+def load() -> None:
+    """Compile (or load from the disk cache) :func:`canonical_rows` for the arrays the
+    library passes (read-only int64 vertex masks), once per process: a first
+    compilation takes seconds, which callers keep out of a case's time limit."""
+    if not _LOADED:
+        masks = np.array([1, 2, 3], dtype=np.int64)
+        masks.flags.writeable = False
+        canonical_rows(2, masks)
+        _LOADED.append(True)
 
 
 @njit(cache=True)

@@ -54,10 +54,22 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-__all__ = ["MAX_ORDER", "checked_green", "is_connection_inverse_by_faces", "star_green",
+__all__ = ["MAX_ORDER", "load", "checked_green", "is_connection_inverse_by_faces", "star_green",
            "is_connection_inverse"]
 
 MAX_ORDER = 1 << 12     # complexes with at most this many simplices (see the bound above)
+_LOADED = []
+
+
+def load() -> None:
+    """Compile (or load from the disk cache) :func:`checked_green` for the arrays the
+    library passes (read-only int64 vertex masks), once per process: a first
+    compilation takes seconds, which callers keep out of a case's time limit."""
+    if not _LOADED:
+        masks = np.array([1, 2, 3], dtype=np.int64)
+        masks.flags.writeable = False
+        checked_green(masks)
+        _LOADED.append(True)
 
 
 @njit(cache=True)

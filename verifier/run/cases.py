@@ -90,6 +90,7 @@ def complexes_of(claim: Claim, case_id: str) -> dict:
 def evaluate_case(claim: Claim, case_id: str, limits: Limits, env: dict | None = None) -> dict:
     """Evaluate one case: build its complexes (unless ``env`` brings them, as a sharded
     family's generator does), check ``where``, evaluate the statement."""
+    _load_kernels()
     start = time.perf_counter()
     record = {"claim": claim.name, "case_id": case_id, "family": family_label(claim, case_id)}
     deadline = time.monotonic() + limits.seconds if limits.seconds is not None else None
@@ -126,6 +127,23 @@ def _build_and_judge(claim: Claim, case_id: str, limits: Limits, deadline: float
     return _judge(claim, env, limits, deadline)
 
 
+def _load_kernels() -> None:
+    """The compiled kernels every case of a complex uses (canonical form, Green
+    function), compiled or loaded from the disk cache before a case's clock starts: the
+    first compilation on a machine takes seconds, which no case's time limit should
+    pay.  Free after the first call in a process."""
+    if _KERNELS_LOADED:
+        return
+    from ..canonical_kernels import load as load_canonical
+    from ..exact.mask_kernels import load as load_green
+    load_canonical()
+    load_green()
+    _KERNELS_LOADED.append(True)
+
+
+_KERNELS_LOADED: list = []
+
+
 def memory_reason(limits: Limits) -> str:
     """The recorded reason of a case that ran out of memory, naming the cap in force."""
     if limits.memory:
@@ -137,6 +155,7 @@ def memory_reason(limits: Limits) -> str:
 def _judge(claim: Claim, env: dict, limits: Limits, deadline: float | None = None) -> dict:
     """Outcome of the claim on one environment (no timing, no ids).  The ``where`` and
     the statement share one deadline (by default ``limits.seconds`` from now)."""
+    _load_kernels()
     context = Context(limits)
     if deadline is not None:
         context.deadline = deadline
