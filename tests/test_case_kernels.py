@@ -270,3 +270,39 @@ def test_content_hash_text_is_the_json_of_the_form():
         text = json.dumps({"canonical": [list(f) for f in K.canonical_form()], "n": n},
                           separators=(",", ":"), sort_keys=True)
         assert K.content_hash == hashlib.sha256(text.encode()).hexdigest()
+
+
+# ------------------------------------------------------------------ one timer per case
+
+def test_a_nested_time_limit_stops_its_own_step():
+    # the case's one interval timer serves building and judging: a ring inside a nested
+    # use is that use's LimitExceeded, and the outer use goes on (common practice, no source)
+    import time
+    from verifier.claims.errors import LimitExceeded
+    from verifier.claims.evaluate import time_limit
+    deadline = time.monotonic() + 0.2
+    reached = []
+    with time_limit(deadline, 0.2):
+        with pytest.raises(LimitExceeded, match="longer than 0.2 s"):
+            with time_limit(deadline, 0.2):
+                while True:
+                    time.sleep(0.01)
+        reached.append("after the nested step")
+    assert reached == ["after the nested step"]
+
+
+def test_a_case_that_outruns_its_limit_while_judged_is_recorded_as_a_limit():
+    # the statement runs past the deadline: outcome "limit" naming the seconds, the
+    # complex still built and hashed (what the record said before the one-timer change)
+    import dataclasses
+    from verifier.claims.evaluate import Limits
+    from verifier.claims.loader import load_text
+    from verifier.run.cases import evaluate_case, plan
+    text = ('[[claim]]\nname = "slow"\nstatement = "sum(x for x in range(10000) for y in '
+            'range(10000)) >= 0"\nsource = "none"\n  [[claim.over]]\n  family = "catalog"\n'
+            '  names = ["simplex-boundary-3"]\n')
+    claim = load_text(text, "slow.toml")[0]
+    case_id = next(iter(plan(claim)))
+    record = evaluate_case(claim, case_id, Limits(seconds=0.3))
+    assert record["outcome"] == "limit" and "seconds" in record["message"]
+    assert record["complex_hash"]
