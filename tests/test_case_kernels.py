@@ -294,7 +294,6 @@ def test_a_nested_time_limit_stops_its_own_step():
 def test_a_case_that_outruns_its_limit_while_judged_is_recorded_as_a_limit():
     # the statement runs past the deadline: outcome "limit" naming the seconds, the
     # complex still built and hashed (what the record said before the one-timer change)
-    import dataclasses
     from verifier.claims.evaluate import Limits
     from verifier.claims.loader import load_text
     from verifier.run.cases import evaluate_case, plan

@@ -226,7 +226,8 @@ def is_connection_inverse(masks, g):
     gathered first, so the work is sum over t of |row t of g| times the number of
     simplices meeting t.
 
-    >>> is_connection_inverse(np.array([1, 2, 3]), star_green(np.array([1, 2, 3]), np.array([1, 1, -1])))
+    >>> edge = np.array([1, 2, 3])
+    >>> is_connection_inverse(edge, star_green(edge, np.array([1, 1, -1])))
     True
     """
     n = len(masks)

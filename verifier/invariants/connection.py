@@ -107,12 +107,14 @@ def green(K: Complex) -> Matrix:
     :mod:`verifier.exact.mask_kernels`: the star formula summed over the faces of each
     simplex and the exact check L g = I (the product summed over faces by the binomial
     identity [x meets t] = sum over non-empty S in x and t of (-1)^(|S| + 1)), both in
-    int64 arithmetic that provably cannot overflow there (partial sums <= n^3).  Otherwise, up to
-    ``LITERAL_CHECK_MAX`` simplices the check is the product L g compared with I.  Beyond, that product costs sum over k of |column k of L| |row k of g|
-    (4.4 * 10^9 multiply-adds for a 3-manifold with 226,208 simplices, where L has 1.6 *
-    10^8 nonzeros), so L g = I is proved from checked factors instead: (1) L = Z^T D Z
-    entry by entry against the definition of L (x and y share a vertex), without storing
-    L (:func:`verifier.exact.linalg.gram_support_congruence_holds`); (2) Z M = M Z = I; then
+    int64 arithmetic that provably cannot overflow there (partial sums <= n^3).
+    Otherwise (:func:`green_general`), up to ``LITERAL_CHECK_MAX`` simplices the check is
+    the product L g compared with I.  Beyond, that product costs sum over k of
+    |column k of L| |row k of g| (4.4 * 10^9 multiply-adds for a 3-manifold with 226,208
+    simplices, where L has 1.6 * 10^8 nonzeros), so L g = I is proved from checked
+    factors instead: (1) L = Z^T D Z entry by entry against the definition of L (x and y
+    share a vertex), without storing L
+    (:func:`verifier.exact.linalg.gram_support_congruence_holds`); (2) Z M = M Z = I; then
     L g = Z^T D (Z M) D M^T = Z^T M^T = (M Z)^T = I exactly
     (:func:`verifier.exact.linalg.inverse_by_congruence`).  g is as sparse as the pairs x, y
     with x cup y a simplex.
