@@ -558,8 +558,11 @@ def flag_cliques(above: list[int], where: str = "") -> tuple[list[tuple[int, ...
     ascending lists the (k+1)-cliques in lexicographic order, so no sorting is needed;
     the work is proportional to the number of cliques.  Raises FamilyError naming
     ``where`` once there are more than MAX_SIMPLICES cliques.
-    Reference: the ordering is that of the Bron-Kerbosch style enumeration of all
-    cliques by increasing size, C. Bron and J. Kerbosch, Comm. ACM 16 (1973) 575-577.
+    Reference: growing cliques level by level inside the common neighbourhood is the
+    method of Y. Zhang, F. N. Abu-Khzam, N. E. Baldwin, E. J. Chesler, M. A. Langston and
+    N. F. Samatova, "Genome-scale computational approaches to memory-intensive
+    applications in systems biology", Proc. ACM/IEEE SC 2005, doi:10.1109/SC.2005.29
+    (the method networkx's enumerate_all_cliques adapts, per its documentation).
     """
     n = len(above)
     cliques: list[tuple[int, ...]] = [(v,) for v in range(n)]
