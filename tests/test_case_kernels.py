@@ -305,3 +305,21 @@ def test_a_case_that_outruns_its_limit_while_judged_is_recorded_as_a_limit():
     record = evaluate_case(claim, case_id, Limits(seconds=0.3))
     assert record["outcome"] == "limit" and "seconds" in record["message"]
     assert record["complex_hash"]
+
+
+def test_flag_complex_of_masks_equals_graph_complex():
+    # reference: graph_complex on the edge list of the same graph (tested above against
+    # networkx)
+    from verifier.families.family import flag_complex_of_masks
+    rng = random.Random(41)
+    for _ in range(300):
+        n = rng.randint(0, 12)
+        edges = gnp_edges(rng, n, rng.random())
+        above = [sum(1 << v for u2, v in edges if u2 == u) for u in range(n)]
+        K = flag_complex_of_masks(above, "test")
+        L = graph_complex(n, edges, True, "test")
+        assert K == L and K.vertex_masks().tolist() == L.vertex_masks().tolist()
+    with pytest.raises(FamilyError, match=r"case Z: the neighbours above vertex 1 must be"):
+        flag_complex_of_masks([0b10, 0b1, 0], "case Z")      # vertex 0 is below vertex 1
+    with pytest.raises(FamilyError, match="case Z: the neighbours above vertex 0"):
+        flag_complex_of_masks([0b1000, 0, 0], "case Z")      # vertex 3 does not exist

@@ -34,7 +34,8 @@ from ..complex import Complex
 
 __all__ = [
     "FamilyError", "Param", "FamilyType", "Family", "SeededFamily", "build_family",
-    "describe_types", "case_random", "graph_complex", "flag_cliques", "REQUIRED", "MAX_COUNT",
+    "describe_types", "case_random", "graph_complex", "flag_cliques",
+    "flag_complex_of_masks", "REQUIRED", "MAX_COUNT",
     "MAX_SIMPLICES", "MAX_RANDOM_VERTICES", "MAX_NESTING",
 ]
 
@@ -526,6 +527,32 @@ def graph_complex(n: int, edges, flag: bool, where: str) -> Complex:
         simplices = [(v,) for v in range(n)] + pairs
         return Complex(tuple(range(n)), tuple(simplices))
     return Complex(tuple(range(n)), tuple(_flag_cliques_networkx(n, pairs, where)))
+
+
+def flag_complex_of_masks(above: list[int], where: str) -> Complex:
+    """The flag complex of the graph on ``0..n-1`` given by upper neighbourhoods.
+
+    Definition: ``above[u]`` is the bitmask (sum of 2^v) of the neighbours v > u of
+    vertex u, n = len(above) <= ``MASK_CLIQUES_MAX_VERTICES``; the result is
+    ``graph_complex(n, edges, True, where)`` for the same graph, built without an edge
+    list (for generators that hold graphs as bitmasks).
+
+    >>> flag_complex_of_masks([0b110, 0b100, 0], "example").f_vector   # a triangle
+    (3, 3, 1)
+
+    Raises FamilyError (naming ``where``) for a mask with a bit outside v > u or beyond
+    the limit of vertices, and, like :func:`graph_complex`, past MAX_SIMPLICES.
+    """
+    n = len(above)
+    if n > MASK_CLIQUES_MAX_VERTICES:
+        raise FamilyError(f"{where}: a graph given by bitmasks may have at most "
+                          f"{MASK_CLIQUES_MAX_VERTICES} vertices; it has {n}")
+    for u, mask in enumerate(above):
+        if type(mask) is not int or mask < 0 or mask >> n or mask & ((2 << u) - 1):
+            raise FamilyError(f"{where}: the neighbours above vertex {u} must be a bitmask "
+                              f"of vertices {u + 1}..{n - 1}; got {mask!r}")
+    cliques, masks = flag_cliques(list(above), where)
+    return Complex._with_vertex_masks(tuple(range(n)), tuple(cliques), masks)
 
 
 def _upper_neighbours(n: int, edges) -> list[int] | None:
