@@ -87,6 +87,8 @@ def _worker_main(function, tasks, results, memory=None):
     results.put((-1, os.getpid(), None, None))   # starts the queue's thread before any cap
     if memory:   # the libraries a case may need are loaded first: the cap is the case's
         from ..claims import backend  # noqa: F401
+        from .cases import _load_kernels
+        _load_kernels()      # compiled kernels too (compiled once per machine, then cached)
     _limit_memory(memory)
     parent = os.getppid()
     while True:
