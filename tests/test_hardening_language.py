@@ -291,9 +291,18 @@ def test_a_case_over_the_memory_cap_is_stopped_and_the_reason_names_the_cap(tmp_
     path = tmp_path / "r.toml"
     path.write_text(claim_file("size(product(refine(K, 2), refine(K, 2))) > 0",
                                family="catalog", extra='names = ["ball-2"]'))
-    result = run([str(path)], RunOptions(store=str(tmp_path / "s.sqlite"), workers=1,
-                                         case_memory=150, case_timeout=60.0))
-    problems = result.claims[0].problems
+    # in a fresh interpreter: a worker forked from a long-lived test process may find the
+    # memory it needs already mapped (freed by earlier tests), below any new cap
+    program = ("import json, sys\nfrom verifier.run.runner import RunOptions, run\n"
+               "result = run([sys.argv[1]], RunOptions(store=sys.argv[2], workers=1, "
+               "case_memory=150, case_timeout=60.0))\n"
+               "print(json.dumps(result.claims[0].problems))\n")
+    done = subprocess.run([sys.executable, "-c", program, str(path),
+                           str(tmp_path / "s.sqlite")], capture_output=True, text=True,
+                          timeout=300)
+    assert done.returncode == 0, done.stderr[-2000:]
+    import json
+    problems = json.loads(done.stdout.strip().splitlines()[-1])
     assert problems and problems[0]["outcome"] == "limit", problems
     assert "150 MB" in problems[0]["message"]
 
