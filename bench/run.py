@@ -39,6 +39,7 @@ from bench.homology import BENCHMARKS as HOMOLOGY_BENCHMARKS  # noqa: E402
 from bench.timing import best_of, fresh  # noqa: E402
 from bench.discover import BENCHMARKS as DISCOVER_BENCHMARKS  # noqa: E402
 from bench.exhaustive import BENCHMARKS as EXHAUSTIVE_BENCHMARKS  # noqa: E402
+from bench.per_case import BENCHMARKS as PER_CASE_BENCHMARKS  # noqa: E402
 
 RESULTS = ROOT / "bench" / "results.json"
 
@@ -585,6 +586,7 @@ BENCHMARKS = {
 BENCHMARKS.update(HOMOLOGY_BENCHMARKS)
 BENCHMARKS.update(DISCOVER_BENCHMARKS)
 BENCHMARKS.update(EXHAUSTIVE_BENCHMARKS)
+BENCHMARKS.update(PER_CASE_BENCHMARKS)
 
 
 def main(argv=None) -> int:
@@ -625,6 +627,10 @@ def main(argv=None) -> int:
                     + ("" if row.get("whole", True) else
                        f" ({row['shards_run']} of {row['shards']} shards; whole run projected "
                        f"{row['projected_whole_h']:.2f} h)"))
+        if name == "per-case-energy":
+            note = (f"run_batch {row['run_batch_cases_per_s']:.0f} cases/s per core; "
+                    + ", ".join(f"{k} {v['ours_us']:.0f} vs {v['baseline_us']:.0f} us"
+                                for k, v in row["steps"].items()))
         if name.startswith("generate-"):
             note = f"{row['cases']:,} complexes generated"
         if name == "campaign-1e6":
