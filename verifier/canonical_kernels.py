@@ -35,7 +35,7 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-__all__ = ["MAX_VERTICES", "load", "canonical_rows"]
+__all__ = ["MAX_VERTICES", "load", "canonical_rows", "popcount"]
 
 MAX_VERTICES = 10
 _LOADED = []
@@ -53,7 +53,8 @@ def load() -> None:
 
 
 @njit(cache=True)
-def _popcount(m):
+def popcount(m):
+    """The number of set bits of m (Kernighan's loop)."""
     count = 0
     while m:
         m &= m - 1
@@ -128,7 +129,7 @@ def _refine(order, start, ncells, facets, incident, n_incident, n, signature,
             value = 0
             digits = 0
             for c in range(ncells):
-                for _ in range(_popcount(facets[i] & cell_mask[c])):
+                for _ in range(popcount(facets[i] & cell_mask[c])):
                     value = value * base + (c + 1)
                     digits += 1
             for _ in range(n - digits):
@@ -227,7 +228,7 @@ def canonical_rows(n, masks):
     for v in range(n):
         row = signature[v]
         for q in range(n_incident[v]):
-            row[q] = _popcount(facets[incident[v, q]])
+            row[q] = popcount(facets[incident[v, q]])
         _sort_small(row, n_incident[v])
     ncells = _split_cells(order, start, 1, signature, new_order, new_start)
     order[:] = new_order

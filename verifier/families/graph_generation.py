@@ -55,6 +55,8 @@ from functools import lru_cache
 import numpy as np
 from numba import njit
 
+from ..canonical_kernels import popcount
+
 __all__ = ["A000088", "A001349", "MAX_GENERATED_VERTICES", "pair_bit", "graph_code",
            "code_edges", "canonical_code", "is_connected", "graphs_on", "children_of"]
 
@@ -203,15 +205,6 @@ def is_connected(n: int, code: int) -> bool:
 
 # ------------------------------------------------------------- the screen
 @njit(cache=True)
-def _popcount(x):
-    count = 0
-    while x:
-        x &= x - 1
-        count += 1
-    return count
-
-
-@njit(cache=True)
 def _key(rows, degrees, u):
     """The invariant key of vertex u: (degree, neighbour degree sum, edges among the
     neighbours), packed into one integer (the last two fit in 8 and 6 bits, n <= 11)."""
@@ -223,7 +216,7 @@ def _key(rows, degrees, u):
     while x:
         if x & 1:
             degree_sum += degrees[w]
-            inside += _popcount(rows[w] & neighbours)
+            inside += popcount(rows[w] & neighbours)
         x >>= 1
         w += 1
     return (degrees[u] * 256 + degree_sum) * 64 + inside // 2
@@ -233,7 +226,7 @@ def _key(rows, degrees, u):
 def _vertex_keys(rows, n):
     degrees = np.empty(n, dtype=np.int64)
     for u in range(n):
-        degrees[u] = _popcount(rows[u])
+        degrees[u] = popcount(rows[u])
     keys = np.empty(n, dtype=np.int64)
     for u in range(n):
         keys[u] = _key(rows, degrees, u)
@@ -251,13 +244,13 @@ def _screen(rows, m, representative):
     status = np.zeros(1 << m, dtype=np.int8)
     parent_degree = np.empty(m, dtype=np.int64)
     for u in range(m):
-        parent_degree[u] = _popcount(rows[u])
+        parent_degree[u] = popcount(rows[u])
     degrees = np.empty(n, dtype=np.int64)
     child = np.empty(n, dtype=np.int64)
     for S in range(1 << m):
         if not representative[S]:
             continue
-        dv = _popcount(S)
+        dv = popcount(S)
         possible = True
         for u in range(m):
             d = parent_degree[u] + (S >> u & 1)

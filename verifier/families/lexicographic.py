@@ -306,23 +306,29 @@ def edge_link_ok(u, v, x, y, c3, o3, etri):
 
 
 @numba.njit(cache=True)
+def _face_without(q, omit):
+    """The triangle of the tetrahedron q (sorted) opposite its vertex q[omit], sorted."""
+    a = -1
+    b = -1
+    c = -1
+    for i in range(4):
+        if i != omit:
+            if a < 0:
+                a = q[i]
+            elif b < 0:
+                b = q[i]
+            else:
+                c = q[i]
+    return a, b, c
+
+
+@numba.njit(cache=True)
 def tet_add(q, c3, o3, etri, eopen, deg, vopen, vtri, vtet):
     """Add the tetrahedron q (sorted) to the state."""
     for i in range(4):
         vtet[q[i]] += 1
     for omit in range(4):
-        # the triangle without q[omit], its fourth vertex q[omit]
-        a = -1
-        b = -1
-        c = -1
-        for i in range(4):
-            if i != omit:
-                if a < 0:
-                    a = q[i]
-                elif b < 0:
-                    b = q[i]
-                else:
-                    c = q[i]
+        a, b, c = _face_without(q, omit)     # its fourth vertex is q[omit]
         m = c3[a, b, c]
         o3[a, b, c, m] = q[omit]
         c3[a, b, c] = m + 1
@@ -356,17 +362,7 @@ def tet_remove(q, c3, etri, eopen, deg, vopen, vtri, vtet):
     for i in range(4):
         vtet[q[i]] -= 1
     for omit in range(3, -1, -1):
-        a = -1
-        b = -1
-        c = -1
-        for i in range(4):
-            if i != omit:
-                if a < 0:
-                    a = q[i]
-                elif b < 0:
-                    b = q[i]
-                else:
-                    c = q[i]
+        a, b, c = _face_without(q, omit)
         m = c3[a, b, c] - 1
         c3[a, b, c] = m
         tri = (a, b, c)
