@@ -45,8 +45,9 @@ ENERGY_ON_SIX_VERTICES = (
     '[[claim.over]]\nfamily = "all-complexes"\nmax_vertices = 6\n')
 
 
-def wait_for_stored_cases(store, seconds: float = 180.0) -> bool:
-    """Wait until a run has written at least one case to the SQLite store."""
+def wait_for_stored_cases(store, seconds: float = 180.0, table: str = "cases") -> bool:
+    """Wait until a run has written at least one case (or with ``table="shard_parts"``
+    one part of a shard) to the SQLite store."""
     import sqlite3
     import time
     deadline = time.monotonic() + seconds
@@ -54,7 +55,7 @@ def wait_for_stored_cases(store, seconds: float = 180.0) -> bool:
         time.sleep(0.2)
         try:
             with sqlite3.connect(store) as db:
-                if db.execute("SELECT COUNT(*) FROM cases").fetchone()[0] > 0:
+                if db.execute(f"SELECT COUNT(*) FROM {table}").fetchone()[0] > 0:
                     return True
         except sqlite3.OperationalError:
             pass
