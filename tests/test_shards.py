@@ -213,3 +213,19 @@ def test_resume_skips_finished_shards(tmp_path):
     assert resumed.resumed and resumed.run_id == first.run_id
     assert resumed.claims[0].digest == first.claims[0].digest
     assert resumed.claims[0].cases == 20
+
+
+def test_report_and_summary_count_every_case_of_a_sharded_claim(tmp_path):
+    from verifier.report import write_report
+    from verifier.run.store import Store
+    path = claim_file(tmp_path, "euler(K) == 0")
+    result = run([path], RunOptions(store=str(tmp_path / "s.sqlite"), engine="inline"))
+    store = Store(tmp_path / "s.sqlite")
+    summary = store.summary(result.run_id)
+    store.close()
+    assert summary["cycles-sharded"]["cases"] == 20
+    assert summary["cycles-sharded"]["counts"]["holds"] == 20
+    write_report(tmp_path / "s.sqlite", tmp_path / "out")
+    text = (tmp_path / "out" / "report.md").read_text()
+    assert "| cycles-sharded | holds | holds | 20 | 20 | 0 |" in text
+    assert "| 0 | sharded-cycles |" in text and "| K | 18 | 18 | 0 |" in text

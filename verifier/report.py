@@ -359,6 +359,33 @@ def _family_counts(db, run_id: str, claim: str, families: list[FamilyData]):
             add(ref, outcome, 1)
 
 
+def _shard_counts(db, run_id: str, claim: str, families: list[FamilyData]):
+    """A claim planned in shards keeps only its notable cases one by one: its outcome
+    counts and times come from its shards' parts (verifier/run/shards.py), and so do its
+    families' counts (a shard key starts with the position of its family).  Returns
+    (counts, seconds), or None for a claim planned case by case."""
+    if not db.execute("SELECT 1 FROM sqlite_master WHERE type = 'table' AND "
+                      "name = 'shard_parts'").fetchone():
+        return None
+    rows = db.execute("SELECT shard, counts, seconds FROM shard_parts WHERE run_id = ? AND "
+                      "claim = ?", (run_id, claim)).fetchall()
+    if not rows:
+        return None
+    counts, seconds = {o: 0 for o in _OUTCOMES}, 0.0
+    for family in families:
+        family.counts, family.cases = {o: 0 for o in _OUTCOMES}, 0
+    by_index = {f.index: f for f in families}
+    for shard, text, spent in rows:
+        entry = by_index.get(int(shard.split("|", 1)[0]))
+        for outcome, count in json.loads(text).items():
+            counts[outcome] = counts.get(outcome, 0) + count
+            if entry is not None:
+                entry.counts[outcome] = entry.counts.get(outcome, 0) + count
+                entry.cases += count
+        seconds += spent or 0.0
+    return counts, seconds
+
+
 def _certificate(folder: Path, name: str, run_id: str) -> tuple[str | None, str]:
     path = folder / f"{name}.json"
     if not path.is_file():
@@ -466,6 +493,8 @@ def collect(store_path, run_id: str | None = None,
                 counts[outcome] = count
                 seconds += spent or 0.0
             _family_counts(db, run_id, name, families)
+            if (sharded := _shard_counts(db, run_id, name, families)) is not None:
+                counts, seconds = sharded
             record = db.execute("SELECT record FROM counterexamples WHERE run_id = ? AND "
                                 "claim = ?", (run_id, name)).fetchone()
             certificate, note = _certificate(folder, name, run_id)
