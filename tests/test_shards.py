@@ -229,3 +229,44 @@ def test_report_and_summary_count_every_case_of_a_sharded_claim(tmp_path):
     text = (tmp_path / "out" / "report.md").read_text()
     assert "| cycles-sharded | holds | holds | 20 | 20 | 0 |" in text
     assert "| 0 | sharded-cycles |" in text and "| K | 18 | 18 | 0 |" in text
+
+
+def test_a_killed_client_resumes_without_redoing_finished_shards(tmp_path):
+    # every graph on 6..8 vertices (OEIS A000088: 156 + 1,044 + 12,346) in three shards;
+    # the client (and its workers) is killed once a shard is stored; --resume keeps that
+    # shard's part and evaluates the rest; the digest is the one of an uninterrupted run
+    import signal
+    import sqlite3
+    import subprocess
+    import sys
+    from .conftest import wait_for_stored_cases
+    claim = tmp_path / "graphs.toml"
+    claim.write_text('[[claim]]\nname = "energy-graphs"\nstatement = "sum(green(K)) == '
+                     'euler(K)"\nsource = "O. Knill, Linear Algebra Appl. 600 (2020)"\n'
+                     '[[claim.over]]\nfamily = "graphs"\nmin_vertices = 6\nmax_vertices = 8\n'
+                     'as = "flag"\n')
+    store = tmp_path / "s.sqlite"
+    command = [sys.executable, "-m", "verifier", "run", str(claim), "--quiet", "--workers",
+               "1", "--store", str(store), "--certificates", str(tmp_path / "certs")]
+    process = subprocess.Popen(command, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
+                               start_new_session=True, cwd=tmp_path)
+    assert wait_for_stored_cases(store, table="shard_parts")
+    os.killpg(process.pid, signal.SIGKILL)
+    process.wait()
+    with sqlite3.connect(store) as db:
+        before = db.execute("SELECT shard, start, stop FROM shard_parts").fetchall()
+        finished = db.execute("SELECT COUNT(*) FROM runs WHERE finished IS NOT NULL"
+                              ).fetchone()[0]
+    assert before and finished == 0
+    resumed = subprocess.run(command + ["--resume"], capture_output=True, text=True,
+                             timeout=300, cwd=tmp_path)
+    assert resumed.returncode == 0, resumed.stderr[-2000:]
+    whole = run([claim], RunOptions(store=str(tmp_path / "w.sqlite"), workers=2))
+    with sqlite3.connect(store) as db:
+        after = db.execute("SELECT shard, start, stop FROM shard_parts").fetchall()
+        runs = db.execute("SELECT COUNT(*) FROM runs").fetchone()[0]
+    assert runs == 1 and set(before) <= set(after)
+    assert sorted(s for s, _, _ in after) == ["0|6/all", "0|7/all", "0|8/p0000-1043"]
+    certificate = json.loads((tmp_path / "certs" / "energy-graphs.json").read_text())
+    assert certificate["digest"] == whole.claims[0].digest
+    assert certificate["cases"] == 156 + 1044 + 12346
