@@ -121,14 +121,7 @@ def checked_green(masks):
     start, faces = _face_lists(masks)
     if start[0] < 0:
         return g, False
-    omega = np.empty(n, np.int64)
-    for z in range(n):
-        m = masks[z]
-        size = 0
-        while m:
-            m &= m - 1
-            size += 1
-        omega[z] = 1 if size % 2 == 1 else -1
+    omega = _omega(masks)
     for z in range(n):
         wz = omega[z]
         for a in range(start[z], start[z + 1]):
@@ -138,6 +131,20 @@ def checked_green(masks):
                 y = faces[b]
                 g[x, y] += wxz * omega[y]
     return g, _verify_by_faces(g, start, faces, omega)
+
+
+@njit(cache=True)
+def _omega(masks):
+    """omega(x) = (-1)^dim(x) for the simplices with these vertex bitmasks."""
+    omega = np.empty(len(masks), np.int64)
+    for z in range(len(masks)):
+        m = masks[z]
+        size = 0
+        while m:
+            m &= m - 1
+            size += 1
+        omega[z] = 1 if size % 2 == 1 else -1
+    return omega
 
 
 @njit(cache=True)
@@ -179,14 +186,7 @@ def is_connection_inverse_by_faces(masks, g):
     start, faces = _face_lists(masks)
     if start[0] < 0:
         return False
-    omega = np.empty(n, np.int64)
-    for z in range(n):
-        m = masks[z]
-        size = 0
-        while m:
-            m &= m - 1
-            size += 1
-        omega[z] = 1 if size % 2 == 1 else -1
+    omega = _omega(masks)
     return _verify_by_faces(g, start, faces, omega)
 
 

@@ -145,6 +145,30 @@ def surface_root_is_least(n, d, cnt, opp, deg, first, cycle):
 
 
 @numba.njit(cache=True)
+def _open_edge(cnt, n):
+    """The lexicographically smallest edge in exactly one triangle, or (-1, -1)."""
+    for a in range(n):
+        for b in range(a + 1, n):
+            if cnt[a, b] == 1:
+                return a, b
+    return -1, -1
+
+
+@numba.njit(cache=True)
+def _open_triangle(c3, etri, eopen, n):
+    """The lexicographically smallest triangle in exactly one tetrahedron, or (-1, -1, -1)
+    (only edges that lie on an open triangle are searched)."""
+    for u in range(n):
+        for v in range(u + 1, n):
+            if etri[u, v] == 0 or eopen[u, v] == 0:
+                continue
+            for z in range(v + 1, n):
+                if c3[u, v, z] == 1:
+                    return u, v, z
+    return -1, -1, -1
+
+
+@numba.njit(cache=True)
 def surface_search(n, d):
     """All labelled closed surfaces on n vertices reached with vertex 0 of degree d,
     one row of triangles each (padded with -1)."""
@@ -174,17 +198,7 @@ def surface_search(n, d):
     eb = np.zeros(width + 1, dtype=np.int64)
     nxt = np.zeros(width + 1, dtype=np.int64)
     isnew = np.zeros(width + 1, dtype=np.bool_)
-    # the smallest open edge
-    a0 = -1
-    b0 = -1
-    for a in range(n):
-        for b in range(a + 1, n):
-            if cnt[a, b] == 1:
-                a0 = a
-                b0 = b
-                break
-        if a0 >= 0:
-            break
+    a0, b0 = _open_edge(cnt, n)
     level = 0
     ea[0] = a0
     eb[0] = b0
@@ -232,16 +246,7 @@ def surface_search(n, d):
         tris[ntri, 1] = y
         tris[ntri, 2] = z
         ntri += 1
-        a2 = -1
-        b2 = -1
-        for u in range(n):
-            for v in range(u + 1, n):
-                if cnt[u, v] == 1:
-                    a2 = u
-                    b2 = v
-                    break
-            if a2 >= 0:
-                break
+        a2, b2 = _open_edge(cnt, n)
         if a2 < 0:
             if used == n and surface_root_is_least(n, d, cnt, opp, deg, first, cycle):
                 if found == out.shape[0]:
@@ -455,15 +460,7 @@ def manifold_search(n, d, link):
     nxt = np.zeros(width + 1, dtype=np.int64)
     isnew = np.zeros(width + 1, dtype=np.bool_)
     level = 0
-    # the smallest open triangle (the link triangles are open)
-    fa[0] = -1
-    for a in range(n):
-        for b in range(a + 1, n):
-            for c in range(b + 1, n):
-                if c3[a, b, c] == 1 and fa[0] < 0:
-                    fa[0] = a
-                    fb[0] = b
-                    fc[0] = c
+    fa[0], fb[0], fc[0] = _open_triangle(c3, etri, eopen, n)   # the link's are open
     nxt[0] = 0
     while level >= 0:
         a = fa[level]
@@ -539,23 +536,7 @@ def manifold_search(n, d, link):
             used += 1
         tets[nt] = q
         nt += 1
-        a2 = -1
-        b2 = -1
-        c2 = -1
-        for u in range(n):
-            for v in range(u + 1, n):
-                if etri[u, v] == 0 or eopen[u, v] == 0:
-                    continue
-                for z in range(v + 1, n):
-                    if c3[u, v, z] == 1:
-                        a2 = u
-                        b2 = v
-                        c2 = z
-                        break
-                if a2 >= 0:
-                    break
-            if a2 >= 0:
-                break
+        a2, b2, c2 = _open_triangle(c3, etri, eopen, n)
         if a2 < 0:
             if used == n:
                 if found == out.shape[0]:
