@@ -45,6 +45,20 @@ ENERGY_ON_SIX_VERTICES = (
     '[[claim.over]]\nfamily = "all-complexes"\nmax_vertices = 6\n')
 
 
+# every graph on 6, 7 and 8 vertices as a flag complex: three shards (6/all, 7/all and one
+# block of parents), 156 + 1,044 + 12,346 cases (OEIS A000088)
+SHARDED_ENERGY = """[[claim]]
+name = "energy-graphs-8"
+statement = "sum(green(K)) == euler(K)"
+source = "O. Knill, The energy of a simplicial complex, Linear Algebra Appl. 600 (2020) 96-129"
+[[claim.over]]
+family = "graphs"
+min_vertices = 6
+max_vertices = 8
+as = "flag"
+"""
+
+
 def wait_for_stored_cases(store, seconds: float = 180.0, table: str = "cases") -> bool:
     """Wait until a run has written at least one case (or with ``table="shard_parts"``
     one part of a shard) to the SQLite store."""

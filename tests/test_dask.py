@@ -17,7 +17,7 @@ import pytest
 from verifier.certificates import certificate_of
 from verifier.run.runner import RunOptions, digest_of, run
 
-from .conftest import ENERGY_ON_SIX_VERTICES, wait_for_stored_cases
+from .conftest import ENERGY_ON_SIX_VERTICES, SHARDED_ENERGY, wait_for_stored_cases
 
 ROOT = Path(__file__).resolve().parent.parent
 LIBRARY = ROOT / "claims"
@@ -104,16 +104,6 @@ def test_resume_across_engines_after_killing_the_client(tmp_path):
     assert digest_of(rows) == whole.claims[0].digest
 
 
-SHARDED_ENERGY = """[[claim]]
-name = "energy-graphs-8"
-statement = "sum(green(K)) == euler(K)"
-source = "O. Knill, The energy of a simplicial complex, Linear Algebra Appl. 600 (2020) 96-129"
-[[claim.over]]
-family = "graphs"
-min_vertices = 6
-max_vertices = 8
-as = "flag"
-"""
 
 
 def test_a_worker_killed_mid_shard_loses_and_duplicates_nothing(cluster, tmp_path):

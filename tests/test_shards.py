@@ -239,12 +239,9 @@ def test_a_killed_client_resumes_without_redoing_finished_shards(tmp_path):
     import sqlite3
     import subprocess
     import sys
-    from .conftest import wait_for_stored_cases
+    from .conftest import SHARDED_ENERGY, wait_for_stored_cases
     claim = tmp_path / "graphs.toml"
-    claim.write_text('[[claim]]\nname = "energy-graphs"\nstatement = "sum(green(K)) == '
-                     'euler(K)"\nsource = "O. Knill, Linear Algebra Appl. 600 (2020)"\n'
-                     '[[claim.over]]\nfamily = "graphs"\nmin_vertices = 6\nmax_vertices = 8\n'
-                     'as = "flag"\n')
+    claim.write_text(SHARDED_ENERGY)
     store = tmp_path / "s.sqlite"
     command = [sys.executable, "-m", "verifier", "run", str(claim), "--quiet", "--workers",
                "1", "--store", str(store), "--certificates", str(tmp_path / "certs")]
@@ -267,6 +264,6 @@ def test_a_killed_client_resumes_without_redoing_finished_shards(tmp_path):
         runs = db.execute("SELECT COUNT(*) FROM runs").fetchone()[0]
     assert runs == 1 and set(before) <= set(after)
     assert sorted(s for s, _, _ in after) == ["0|6/all", "0|7/all", "0|8/p0000-1043"]
-    certificate = json.loads((tmp_path / "certs" / "energy-graphs.json").read_text())
+    certificate = json.loads((tmp_path / "certs" / "energy-graphs-8.json").read_text())
     assert certificate["digest"] == whole.claims[0].digest
     assert certificate["cases"] == 156 + 1044 + 12346

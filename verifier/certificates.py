@@ -854,8 +854,8 @@ class _Check:
         the shards that hold the sampled cases (every shard without --sample) are generated
         again, each checked against its recorded count and sum, and the sampled cases are
         queued for re-evaluation."""
-        from .run.shards import (ShardError, add_sums, line_value, shard_cases, shard_keys,
-                                 sharded_digest)
+        from .run.shards import (MODULUS, ShardError, add_sums, line_value, shard_cases,
+                                 shard_keys, sharded_digest)
         if self.cap is not None:
             raise _Rejected("malformed: max_cases on a claim over a family planned in shards "
                             "(the runner never caps such a claim)")
@@ -911,7 +911,7 @@ class _Check:
                 if positions is None or index in wanted[number]:
                     chosen.append(cid)
                     envs[cid] = env
-            if count != entry["cases"] or f"{total % (1 << 256):064x}" != entry["sum"]:
+            if count != entry["cases"] or f"{total % MODULUS:064x}" != entry["sum"]:
                 raise _Rejected(f"mismatch: shard {key} generated again has {count:,} cases and "
                                 f"another digest sum than the certificate records "
                                 f"({entry['cases']:,} cases)")

@@ -27,8 +27,8 @@ from ..families.named import data_folders
 from .cases import _claims as _claims_cache
 from .cases import complexes_of, family_label, limits_dict, plan, run_batch, sources_of
 from .engines import Batch, DaskEngine, InlineEngine, ProcessEngine
-from .shards import (ShardError, add_sums, case_at, count_shard, is_sharded, line_value,
-                     run_shard, shard_keys, sharded_digest)
+from .shards import (ShardError, case_at, count_shard, is_sharded, line_value, run_shard,
+                     shard_keys)
 from .shrink import shrink
 from .store import Store, StoreError, check_store_path, verdict_of
 
@@ -485,9 +485,6 @@ def _split_shard(claim: Claim, batch: Batch, bounds: Limits) -> list[Batch] | No
             return None
         stop = value
     if stop - start <= 1:
-        if batch.args[4] is None and stop - start == 1:     # now a piece of one case
-            return [Batch((files, name, key, start, stop, limits), [key], batch.budget,
-                          batch.attempt, batch.splitter)]
         return None
     middle = (start + stop) // 2
     per_case = batch.budget / max(stop - start, 1)
@@ -498,9 +495,9 @@ def _split_shard(claim: Claim, batch: Batch, bounds: Limits) -> list[Batch] | No
 def _failed_piece(claim: Claim, batch: Batch, failure: dict, bounds: Limits):
     """The part and record of a piece the engine gave up on: a single case (its worker
     kept dying or overran) or a shard that could not even be counted."""
-    _files, _name, key, start, stop, _limits_ = batch.args
-    status, value = ("error", "the shard could not be split") if stop is None else _in_child(
-        case_at, (claim, key, start), (bounds.seconds or 60.0) + CLIENT_MARGIN, bounds.memory)
+    key, start = batch.args[2], batch.args[3]
+    status, value = _in_child(case_at, (claim, key, start), (bounds.seconds or 60.0)
+                              + CLIENT_MARGIN, bounds.memory)
     if status == "ok":
         case_id, complex_hash, last = value
     else:
@@ -510,8 +507,8 @@ def _failed_piece(claim: Claim, batch: Batch, failure: dict, bounds: Limits):
               "complex_hash": complex_hash, "outcome": failure["outcome"],
               "message": failure["message"] + ("" if status == "ok" else f"; {value}"),
               "seconds": 0.0}
-    part = {"shard": key, "start": start, "stop": start + 1, "complete": last, "cases": 1, "counts": {failure["outcome"]: 1},
-            "sum": f"{line_value(case_id, complex_hash):064x}", "seconds": 0.0}
+    part = {"shard": key, "start": start, "stop": start + 1, "complete": last, "cases": 1,
+            "counts": {failure["outcome"]: 1}, "sum": f"{line_value(case_id, complex_hash):064x}", "seconds": 0.0}
     return part, [record]
 
 
@@ -525,14 +522,9 @@ def _summarise(store: Store, run_id: str, claim: Claim, options: RunOptions,
                keys: list[str] | None = None) -> ClaimResult:
     counts = store.counts(run_id, claim.name)
     shards = None
-    if keys is not None:        # a sharded claim: cases and digest from its parts
+    if keys is not None:        # a sharded claim: its shards' sums, in the planned order
         sums = {entry["shard"]: entry for entry in store.shard_sums(run_id, claim.name)}
         shards = [sums[key] for key in keys if key in sums]
-        cases = sum(entry["cases"] for entry in shards)
-        digest = sharded_digest(cases, add_sums("0" * 64, *(e["sum"] for e in shards)))
-    else:
-        rows = store.hashes(run_id, claim.name)
-        cases, digest = len(rows), digest_of(rows)
     problems = store.problem_cases(run_id, claim.name)
     failing = counts["fails"] > 0
     meets, verdict = verdict_of(counts, claim.expect)
@@ -541,7 +533,7 @@ def _summarise(store: Store, run_id: str, claim: Claim, options: RunOptions,
         counterexample = store.counterexample(run_id, claim.name)
         if counterexample is None:
             counterexample = _shrink_first(store, run_id, claim, options)
-    return ClaimResult(claim, counts, cases, digest,
+    return ClaimResult(claim, counts, sum(counts.values()), store.digest(run_id, claim.name),
                        store.seconds(run_id, claim.name), meets, verdict, counterexample, problems,
                        store.certified_values(run_id, claim.name), shards)
 
